@@ -44,3 +44,11 @@ export async function closeDb(): Promise<void> {
   globalForDb.varigateDb = undefined;
   if (c) await c.sql.end({ timeout: 5 });
 }
+
+/** Anything that can run drizzle queries: the database or an open transaction. */
+export type Executor = Pick<Database, 'select' | 'insert' | 'update' | 'delete' | 'execute'>;
+
+/** Runs `fn` in one transaction. */
+export function transaction<T>(fn: (tx: Executor) => Promise<T>): Promise<T> {
+  return getDb().transaction((tx) => fn(tx));
+}

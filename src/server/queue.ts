@@ -2,7 +2,9 @@ import 'server-only';
 import os from 'node:os';
 import { randomUUID } from 'node:crypto';
 import type postgres from 'postgres';
-import { getSql } from '@/db/client';
+import { eq, sql } from 'drizzle-orm';
+import { getDb, getSql, type Executor } from '@/db/client';
+import { jobs } from '@/db/schema';
 import { logger } from './logger';
 
 /**
@@ -31,25 +33,33 @@ export interface EnqueueInput {
 }
 
 type Sql = postgres.Sql;
-type SqlOrTx = postgres.Sql | postgres.TransactionSql;
 
-/** Enqueues a job; pass the transaction's `sql` so the job commits with the rows it refers to. */
-export async function enqueue(input: EnqueueInput, sql: SqlOrTx = getSql()): Promise<number> {
-  const payload = sql.json(input.payload as postgres.JSONValue);
-  const rows = await sql<{ id: number }[]>`
-    insert into jobs (kind, payload, dedupe_key, run_at, max_attempts)
-    values (${input.kind}, ${payload}, ${input.dedupeKey ?? null}, ${input.runAt ?? new Date()}, ${input.maxAttempts ?? 5})
-    on conflict (dedupe_key) do update set dedupe_key = excluded.dedupe_key
-    returning id`;
-  return Number(rows[0]!.id);
+/**
+ * Enqueues a job. Pass the open transaction so that the job commits together with the rows it
+ * refers to (a run and its analysis job appear at once or not at all).
+ */
+export async function enqueue(input: EnqueueInput, db: Executor = getDb()): Promise<number> {
+  const [row] = await db
+    .insert(jobs)
+    .values({
+      kind: input.kind,
+      payload: input.payload,
+      dedupeKey: input.dedupeKey ?? null,
+      runAt: input.runAt ?? new Date(),
+      maxAttempts: input.maxAttempts ?? 5,
+    })
+    // Re-enqueueing with the same key returns the existing job untouched.
+    .onConflictDoUpdate({ target: jobs.dedupeKey, set: { dedupeKey: sql`excluded.dedupe_key` } })
+    .returning({ id: jobs.id });
+  return row!.id;
 }
 
 /** Puts a finished or dead job back in the queue (re-analysis with another policy, say). */
-export async function requeue(dedupeKey: string, sql: SqlOrTx = getSql()): Promise<void> {
-  await sql`
-    update jobs set status = 'queued', run_at = now(), attempts = 0, last_error = null,
-      locked_by = null, locked_until = null, finished_at = null
-    where dedupe_key = ${dedupeKey}`;
+export async function requeue(dedupeKey: string, db: Executor = getDb()): Promise<void> {
+  await db
+    .update(jobs)
+    .set({ status: 'queued', runAt: new Date(), attempts: 0, lastError: null, lockedBy: null, lockedUntil: null, finishedAt: null })
+    .where(eq(jobs.dedupeKey, dedupeKey));
 }
 
 async function claim(sql: Sql, kinds: string[], workerId: string, leaseSeconds: number): Promise<JobRow | undefined> {
@@ -165,4 +175,25 @@ async function runJob(sql: Sql, job: JobRow, handler: JobHandler, workerId: stri
 
 function sleep(ms: number): Promise<void> {
   return new Promise((resolve) => setTimeout(resolve, ms));
+}
+
+/**
+ * Runs the given handlers in this process until no job of their kinds is queued or running
+ * (used by the demo seed, so that `npm start` opens on analysed data).
+ */
+export async function runUntilIdle(options: { handlers: Record<string, JobHandler>; pollMs?: number }): Promise<void> {
+  const sql = getSql();
+  const kinds = Object.keys(options.handlers);
+  const worker = startWorker({ handlers: options.handlers, pollMs: options.pollMs ?? 100, leaseSeconds: 60 });
+  try {
+    for (;;) {
+      const [row] = await sql<{ n: number }[]>`
+        select count(*)::int as n from jobs
+        where kind = any(${kinds}) and (status = 'queued' or (status = 'running' and locked_until > now()))`;
+      if (!row || row.n === 0) return;
+      await sleep(200);
+    }
+  } finally {
+    await worker.stop();
+  }
 }

@@ -1,0 +1,14 @@
+import { requireCaller } from '@/src/server/auth/caller';
+import { json, parseOrThrow, route } from '@/src/server/http/handler';
+import { getRunSeries } from '@/src/server/services/reports';
+import { runIdSchema } from '@/src/schemas/runs';
+
+export const dynamic = 'force-dynamic';
+
+/** The per-step metric series of one variable (`?variable=`; the first by default). */
+export const GET = route<{ id: string }>(async (request, params) => {
+  const caller = await requireCaller(request);
+  const id = parseOrThrow(runIdSchema, 'run', params.id);
+  const variable = new URL(request.url).searchParams.get('variable') ?? undefined;
+  return json(await getRunSeries(caller, id, variable));
+});

@@ -1,0 +1,79 @@
+import 'server-only';
+import { and, asc, eq, sql } from 'drizzle-orm';
+import { getDb, type Executor } from '@/db/client';
+import { builds, cases, runs, type Build } from '@/db/schema';
+
+export async function getBuildByKey(
+  { workspaceId, projectId, key }: { workspaceId: string; projectId: string; key: string },
+  db: Executor = getDb(),
+): Promise<Build | undefined> {
+  const rows = await db
+    .select()
+    .from(builds)
+    .where(and(eq(builds.workspaceId, workspaceId), eq(builds.projectId, projectId), eq(builds.key, key)))
+    .limit(1);
+  return rows[0];
+}
+
+/** The build with this CI key, created on first use. */
+export async function ensureBuild(
+  input: { workspaceId: string; projectId: string; key: string; commit: string; branch: string; ciUrl?: string | null; startedAt?: Date },
+  db: Executor = getDb(),
+): Promise<Build> {
+  await db
+    .insert(builds)
+    .values({ ...input, ciUrl: input.ciUrl ?? null, startedAt: input.startedAt ?? new Date() })
+    .onConflictDoNothing({ target: [builds.projectId, builds.key] });
+  return (await getBuildByKey(input, db))!;
+}
+
+/**
+ * Recomputes a build's verdict as its worst finished run (error > fail > warn > pass) and marks
+ * it finished once no run is queued or being analysed. Called in the same transaction that
+ * finishes a run, so the build never shows a verdict its runs do not support.
+ */
+export async function refreshBuildVerdict({ buildId }: { buildId: string }, db: Executor = getDb()): Promise<void> {
+  await db.execute(sql`
+    update builds b set
+      verdict = agg.worst,
+      finished_at = case when agg.open = 0 then coalesce(b.finished_at, now()) else null end
+    from (
+      select
+        (array['pass','warn','fail','error']::verdict[])[max(case r.verdict
+            when 'pass' then 1 when 'warn' then 2 when 'fail' then 3 when 'error' then 4 end)] as worst,
+        count(*) filter (where r.status in ('queued', 'analysing')) as open
+      from runs r where r.build_id = ${buildId}
+    ) agg
+    where b.id = ${buildId}`);
+}
+
+export interface BuildRunRow {
+  runId: string;
+  caseName: string;
+  status: string;
+  verdict: string | null;
+  errorMessage: string | null;
+  createdAt: Date;
+}
+
+/** Runs of a build, latest run per case (a CI retry of a case supersedes the earlier one). */
+export async function listBuildRuns({ workspaceId, buildId }: { workspaceId: string; buildId: string }): Promise<BuildRunRow[]> {
+  return getDb()
+    .selectDistinctOn([cases.name], {
+      runId: runs.id,
+      caseName: cases.name,
+      status: runs.status,
+      verdict: runs.verdict,
+      errorMessage: runs.errorMessage,
+      createdAt: runs.createdAt,
+    })
+    .from(runs)
+    .innerJoin(cases, eq(cases.id, runs.caseId))
+    .where(and(eq(runs.workspaceId, workspaceId), eq(runs.buildId, buildId)))
+    .orderBy(asc(cases.name), sql`${runs.createdAt} desc`);
+}
+
+/** A build that had finished is open again while a newly posted run is analysed. */
+export async function reopenBuild({ buildId }: { buildId: string }, db: Executor = getDb()): Promise<void> {
+  await db.update(builds).set({ finishedAt: null }).where(eq(builds.id, buildId));
+}
