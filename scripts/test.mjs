@@ -88,9 +88,14 @@ async function main() {
   children.spawn('web', bin('next'), ['start', '-p', String(appPort), '-H', '127.0.0.1'], { ...env, NODE_ENV: 'production' }, {
     logFile: path.join(logDir, 'web.log'),
   });
-  children.spawn('worker', bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], { ...env, NODE_ENV: 'production', VARIGATE_PROCESS: 'worker' }, {
+  const worker = children.spawn('worker', bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], { ...env, NODE_ENV: 'production', VARIGATE_PROCESS: 'worker' }, {
     logFile: path.join(logDir, 'worker.log'),
   });
+  // The worker-failure test pauses this worker while it kills workers of its own.
+  const workerPidFile = path.join(tmpDir, 'run', 'worker.pid');
+  fs.mkdirSync(path.dirname(workerPidFile), { recursive: true });
+  fs.writeFileSync(workerPidFile, String(worker.pid));
+  env.VARIGATE_TEST_WORKER_PID_FILE = workerPidFile;
   await waitForHttp(`${appUrl}/api/health`);
 
   say('vitest: unit, reference, api and browser tests');

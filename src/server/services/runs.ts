@@ -154,12 +154,15 @@ export async function createRunFromObject(input: { caller: Caller; body: RunFrom
   if (head.size > env().VARIGATE_MAX_OBJECT_BYTES) {
     throw new AppError('too_large:upload', `The uploaded object has ${head.size} bytes; the limit is ${env().VARIGATE_MAX_OBJECT_BYTES}.`);
   }
-  // The object's key is unique per presign, so it identifies the content for idempotency.
-  const hash = requestHash(body, `object:${body.objectKey}:${head.size}`);
-  const earlier = await findIdempotentRun(caller, idempotencyKey, hash);
-  if (earlier) return earlier;
-  const fileName = body.fileName ?? body.objectKey.split('/').pop() ?? 'upload';
+  // Hash the content, not the key: a CI job that re-runs uploads the same bytes under a new
+  // presigned key, and must get its earlier run back rather than a conflict.
   const sha256 = await sha256OfObject(body.objectKey);
+  const hash = requestHash(body, sha256);
+  const earlier = await findIdempotentRun(caller, idempotencyKey, hash);
+  if (earlier) {
+    return earlier;
+  }
+  const fileName = body.fileName ?? body.objectKey.split('/').pop() ?? 'upload';
   return recordRun(caller, body, { objectKey: body.objectKey, fileName, size: head.size, sha256, contentType: head.contentType }, idempotencyKey, hash);
 }
 
