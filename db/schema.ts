@@ -239,6 +239,8 @@ export const findings = pgTable(
     location: jsonb('location'),
     magnitude: doublePrecision('magnitude'),
     threshold: doublePrecision('threshold'),
+    /** The rest of the analysis finding: relative size, steps affected, worst step, baseline value. */
+    details: jsonb('details').notNull().default({}),
     message: text('message').notNull(),
     createdAt: createdAt(),
   },

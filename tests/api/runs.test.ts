@@ -213,9 +213,9 @@ describe('POST /api/v1/runs and the analysis worker', () => {
       .set('Authorization', `Bearer ${project.token}`);
     expect(series.status).toBe(200);
     expect(series.body.variable).toBe(variable);
-    expect(series.body.series.step.length).toBeGreaterThan(1);
-    expect(series.body.series.totalVariation.length).toBe(series.body.series.step.length);
-    const stepIndex = series.body.series.step[1];
+    expect(series.body.series.index.length).toBeGreaterThan(1);
+    expect(series.body.series.tv.length).toBe(series.body.series.index.length);
+    const stepIndex = series.body.series.index[1];
     const step = await request(appUrl())
       .get(`/api/v1/runs/${res.body.run.id}/steps/${stepIndex}?variable=${variable}&points=32`)
       .set('Authorization', `Bearer ${project.token}`);

@@ -33,6 +33,7 @@ export async function withStoredSnapshots<T>(
 
 /** Turns a reader's complaint into the 4xx it is; anything else stays an internal error. */
 export function readErrorToAppError(err: unknown): unknown {
-  if (isReadError(err)) return new AppError('invalid:upload', err.message, err.where ? { where: err.where } : undefined);
-  return err;
+  if (!isReadError(err)) return err;
+  const details = err.where ? { where: err.where } : undefined;
+  return new AppError(err.code === 'limit' ? 'too_large:upload' : 'invalid:upload', err.message, details);
 }

@@ -1,0 +1,70 @@
+import 'server-only';
+import { z } from 'zod';
+import { transaction } from '@/db/client';
+import type { Policy, VariableSummary } from '@/src/analysis';
+import { logger } from '../logger';
+import { refreshBuildVerdict } from '../queries/builds';
+import { getBaseline } from '../queries/projects';
+import { getRunContext, getRunWorkspace, getUploadForRun, listRunVariables, markRunAnalysing, replaceRunResults, type AnalysisResultRows, type RunContext } from '../queries/runs';
+import { PermanentJobError, type JobRow } from '../queue';
+import { analyseSnapshots, effectivePolicy, errorRows, fromVariableRow, isInputError, judgeToRows } from '../services/analysis';
+import { withStoredSnapshots } from '../services/snapshots';
+
+const payloadSchema = z.object({ runId: z.uuid() });
+
+/** The accepted run of the case on this branch, else on the project's default branch. */
+async function baselineSummaries(ctx: RunContext): Promise<VariableSummary[] | null> {
+  const workspaceId = ctx.run.workspaceId;
+  const baseline =
+    (await getBaseline({ workspaceId, caseId: ctx.run.caseId, branch: ctx.branch })) ??
+    (await getBaseline({ workspaceId, caseId: ctx.run.caseId, branch: ctx.defaultBranch }));
+  if (!baseline || baseline.runId === ctx.run.id) return null;
+  const rows = await listRunVariables({ workspaceId, runId: baseline.runId });
+  return rows.length > 0 ? rows.map(fromVariableRow) : null;
+}
+
+async function analyse(ctx: RunContext, policy: Policy): Promise<AnalysisResultRows> {
+  const upload = await getUploadForRun({ workspaceId: ctx.run.workspaceId, runId: ctx.run.id });
+  if (!upload) return errorRows('The run has no stored file.', policy);
+  const stepDelayMs = Number(process.env.VARIGATE_ANALYSIS_STEP_DELAY_MS ?? 0) || undefined;
+  const summaries = await withStoredSnapshots(upload, ctx.run.manifest, (reader) => analyseSnapshots(reader, { policy, stepDelayMs }));
+  return judgeToRows(summaries, policy, await baselineSummaries(ctx));
+}
+
+/**
+ * Job `analyse-run`: reads the run's file from object storage, analyses and judges it, and
+ * replaces the run's results and its build's verdict in one transaction. Running it again gives
+ * the same rows (idempotent). Bad input ends the run with verdict `error` and the reader's
+ * message; other failures are retried with backoff, and the last attempt's failure is recorded
+ * on the run so it never stays "analysing" for ever.
+ */
+export async function analyseRunJob(job: JobRow): Promise<void> {
+  const parsed = payloadSchema.safeParse(job.payload);
+  if (!parsed.success) throw new PermanentJobError('analyse-run job without a valid runId');
+  const { runId } = parsed.data;
+  const workspaceId = await getRunWorkspace({ id: runId });
+  if (!workspaceId) throw new PermanentJobError(`run ${runId} no longer exists`);
+  const ctx = (await getRunContext({ workspaceId, id: runId }))!;
+  await markRunAnalysing({ id: runId });
+
+  let result: AnalysisResultRows;
+  let policy: unknown = null;
+  try {
+    const effective = effectivePolicy(ctx.projectPolicy, ctx.casePolicy);
+    policy = effective;
+    result = await analyse(ctx, effective);
+  } catch (err) {
+    if (isInputError(err)) {
+      result = errorRows((err as Error).message, policy);
+    } else if (job.attempts >= job.maxAttempts) {
+      logger.error({ err, runId }, 'analysis failed on its last attempt');
+      result = errorRows(`Analysis failed after ${job.attempts} attempts: ${(err as Error).message}`, policy);
+    } else {
+      throw err;
+    }
+  }
+  await transaction(async (tx) => {
+    await replaceRunResults({ workspaceId, runId, result }, tx);
+    await refreshBuildVerdict({ buildId: ctx.run.buildId }, tx);
+  });
+}
