@@ -121,7 +121,10 @@ async function postCase(caller: TokenCaller, dir: string, c: DemoCase, night: nu
   const text = caseCsv(c, night);
   const file = path.join(dir, `${c.name}-${night}.csv`);
   await writeFile(file, text);
-  const manifest = c.bounds ? { variableOptions: { [c.variable]: { bounds: c.bounds, velocitySign: 1 as const } } } : { variableOptions: { [c.variable]: { velocitySign: 1 as const } } };
+  // The reference schemes run on periodic domains: say so, or the wrap-around looks like a jump.
+  const periodic: Record<string, boolean> = c.profile === 'square2d' ? { x: true, y: true } : { x: true };
+  const options = { periodic, velocitySign: 1 as const, ...(c.bounds ? { bounds: c.bounds } : {}) };
+  const manifest = { variableOptions: { [c.variable]: options } };
   const { run } = await createRunFromFile({
     caller,
     target: { build: buildKey, commit, branch: 'main', case: c.name, ciUrl: `https://ci.brackwater.example/builds/${buildKey}`, manifest },
