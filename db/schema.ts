@@ -362,3 +362,86 @@ export const jobs = pgTable(
   (t) => [index('jobs_claim_idx').on(t.status, t.runAt)],
 );
 export type Job = typeof jobs.$inferSelect;
+
+/**
+ * One-time links sent by mail: sign-in without a password, and password reset. Only the
+ * SHA-256 of the secret is stored; a link works once and until `expires_at`.
+ */
+export const signInTokens = pgTable(
+  'sign_in_tokens',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    email: text('email').notNull(),
+    userId: uuid('user_id').references(() => users.id, { onDelete: 'cascade' }),
+    purpose: text('purpose', { enum: ['sign-in', 'reset'] }).notNull(),
+    tokenHash: text('token_hash').notNull().unique(),
+    expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+    usedAt: timestamp('used_at', { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('sign_in_tokens_email_idx').on(t.email, t.createdAt)],
+);
+export type SignInToken = typeof signInTokens.$inferSelect;
+
+/** An admin's invitation to a workspace with a role; the link works once, for 7 days. */
+export const invitations = pgTable(
+  'invitations',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    workspaceId: uuid('workspace_id')
+      .notNull()
+      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    email: text('email').notNull(),
+    role: roleEnum('role').notNull(),
+    tokenHash: text('token_hash').notNull().unique(),
+    invitedBy: uuid('invited_by').references(() => users.id, { onDelete: 'set null' }),
+    expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+    acceptedAt: timestamp('accepted_at', { withTimezone: true }),
+    revokedAt: timestamp('revoked_at', { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('invitations_workspace_idx').on(t.workspaceId, t.createdAt)],
+);
+export type Invitation = typeof invitations.$inferSelect;
+
+/**
+ * Sign-in attempts, for rate limiting per account and per client address. In the database, not
+ * in memory, so the limit holds across web instances.
+ */
+export const signInAttempts = pgTable(
+  'sign_in_attempts',
+  {
+    id: bigserial('id', { mode: 'number' }).primaryKey(),
+    email: text('email').notNull(),
+    ip: text('ip').notNull(),
+    succeeded: boolean('succeeded').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index('sign_in_attempts_email_idx').on(t.email, t.createdAt), index('sign_in_attempts_ip_idx').on(t.ip, t.createdAt)],
+);
+
+/**
+ * Every mail the app sends (digests, alerts, invitations, sign-in links): queued, sent, or
+ * failed with the SMTP error. `dedupe_key` makes a send idempotent: one digest per subscriber
+ * and period, one alert per subscriber and failing streak, whatever the number of workers.
+ */
+export const mailDeliveries = pgTable(
+  'mail_deliveries',
+  {
+    id: bigserial('id', { mode: 'number' }).primaryKey(),
+    workspaceId: uuid('workspace_id').references(() => workspaces.id, { onDelete: 'cascade' }),
+    kind: text('kind', { enum: ['digest', 'alert', 'invitation', 'sign-in', 'reset', 'preview'] }).notNull(),
+    recipient: text('recipient').notNull(),
+    subject: text('subject').notNull(),
+    dedupeKey: text('dedupe_key').unique(),
+    status: text('status', { enum: ['queued', 'sent', 'failed'] }).notNull().default('queued'),
+    attempts: integer('attempts').notNull().default(0),
+    lastError: text('last_error'),
+    messageId: text('message_id'),
+    payload: jsonb('payload').notNull().default({}),
+    createdAt: createdAt(),
+    sentAt: timestamp('sent_at', { withTimezone: true }),
+  },
+  (t) => [index('mail_deliveries_workspace_created_idx').on(t.workspaceId, t.createdAt)],
+);
+export type MailDelivery = typeof mailDeliveries.$inferSelect;

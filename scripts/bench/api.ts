@@ -132,13 +132,13 @@ export async function run(): Promise<void> {
     const appPort = await services.freePort();
     const appUrl = `http://127.0.0.1:${appPort}`;
     const { env: serviceEnv } = await services.startAll({ dataDir, ports, fast: false });
-    const env = {
+    const env: NodeJS.ProcessEnv = {
       ...process.env,
       ...serviceEnv,
       APP_URL: appUrl,
       AUTH_SECRET: 'bench-secret-that-is-long-enough-0123456789',
       NEXT_DIST_DIR: '.next-test',
-      NODE_ENV: 'production',
+      NODE_ENV: 'production' as const,
       LOG_LEVEL: 'warn',
       LOG_FORMAT: 'json',
       NEXT_TELEMETRY_DISABLED: '1',

@@ -11,6 +11,8 @@ export const uploadFormatSchema = z.enum(['csv', 'csv-long', 'csv-wide', 'hdf5',
 
 /** Fields that describe where a run belongs; shared by the multipart and the JSON form. */
 export const runTargetSchema = z.object({
+  /** Signed-in people name the workspace (slug); CI tokens imply it. */
+  workspace: slugSchema.optional(),
   project: slugSchema.optional(),
   build: z.string().trim().min(1, 'the CI build key is required').max(200),
   commit: z.string().trim().min(1, 'the commit is required').max(100),
@@ -31,6 +33,8 @@ export type RunFromObject = z.infer<typeof runFromObjectSchema>;
 
 /** POST /api/v1/uploads: ask for a presigned PUT URL. */
 export const presignRequestSchema = z.object({
+  workspace: slugSchema.optional(),
+  project: slugSchema.optional(),
   fileName: z.string().trim().min(1).max(255),
   size: z.number().int().positive(),
   contentType: z.string().max(200).optional(),
@@ -44,6 +48,8 @@ export const stepQuerySchema = z.object({
 });
 
 export const baselineRequestSchema = z.object({
+  workspace: slugSchema.optional(),
+  project: slugSchema.optional(),
   run: z.uuid('`run` must be the id of a finished run'),
   branch: z.string().trim().min(1).max(200).optional(),
 });

@@ -1,11 +1,14 @@
 import 'server-only';
 import { AppError } from '../errors';
 import { getTokenOwnerByHash, touchToken } from '../queries/tokens';
+import { getSessionUser } from './session';
 import { hashToken, looksLikeToken } from './token-secret';
 
 /**
- * Who is asking. CI jobs present a project token (`Authorization: Bearer vgt_...`); a token may
- * upload to and read its own project only. (Signed-in people come with the session sign-in.)
+ * Who is asking an /api/v1 route. CI jobs present a project token (`Authorization: Bearer
+ * vgt_...`), which may upload to and read its own project only. The web app's own calls carry
+ * the session cookie of a signed-in person, whose rights come from their workspace roles
+ * (src/server/auth/scope.ts turns either into the project or run they may touch).
  */
 export interface TokenCaller {
   kind: 'token';
@@ -15,14 +18,15 @@ export interface TokenCaller {
   projectSlug: string;
 }
 
-export type Caller = TokenCaller;
+export interface UserCaller {
+  kind: 'user';
+  userId: string;
+  email: string;
+}
 
-/** The caller of an /api/v1 request, or a 401 explaining what is missing. */
-export async function requireCaller(request: Request): Promise<Caller> {
-  const header = request.headers.get('authorization');
-  if (!header) {
-    throw new AppError('unauthorized:token', 'Missing Authorization header: send `Authorization: Bearer <token>`.');
-  }
+export type Caller = TokenCaller | UserCaller;
+
+async function tokenCaller(header: string): Promise<TokenCaller> {
   const match = /^Bearer\s+(\S+)$/i.exec(header.trim());
   if (!match) throw new AppError('unauthorized:token', 'Authorization header must be `Bearer <token>`.');
   const token = match[1]!;
@@ -34,9 +38,19 @@ export async function requireCaller(request: Request): Promise<Caller> {
   return { kind: 'token', ...owner };
 }
 
-/** A token reaches only its own project: naming another one is a 403. */
-export function assertProjectAccess(caller: Caller, projectSlug: string | undefined): void {
-  if (projectSlug !== undefined && projectSlug !== caller.projectSlug) {
-    throw new AppError('forbidden:project', `This token belongs to project "${caller.projectSlug}", not "${projectSlug}".`);
+/** The caller of an /api/v1 request, or a 401 saying what is missing. */
+export async function requireCaller(request: Request): Promise<Caller> {
+  const header = request.headers.get('authorization');
+  if (header) return tokenCaller(header);
+  const user = await getSessionUser();
+  if (user) return { kind: 'user', userId: user.id, email: user.email };
+  throw new AppError('unauthorized:token', 'Missing credentials: send `Authorization: Bearer <token>`, or sign in.');
+}
+
+/** Routes that change who may do what (members, tokens, policies) are for people only. */
+export function requireUserCaller(caller: Caller): UserCaller {
+  if (caller.kind !== 'user') {
+    throw new AppError('forbidden:token', 'CI tokens may upload and read only; this needs a signed-in person with the right role.');
   }
+  return caller;
 }

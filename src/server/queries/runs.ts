@@ -88,6 +88,15 @@ export async function getRunContext({ workspaceId, id }: { workspaceId: string; 
   return rows[0];
 }
 
+/**
+ * Where a run belongs, without scoping: for the worker (which serves every workspace) and for
+ * the access check that decides whether a caller may see the run at all.
+ */
+export async function getRunProject({ id }: { id: string }): Promise<{ workspaceId: string; projectId: string } | undefined> {
+  const rows = await getDb().select({ workspaceId: runs.workspaceId, projectId: runs.projectId }).from(runs).where(eq(runs.id, id)).limit(1);
+  return rows[0];
+}
+
 /** For the worker, which serves every workspace: the workspace a run belongs to. */
 export async function getRunWorkspace({ id }: { id: string }): Promise<string | undefined> {
   const rows = await getDb().select({ workspaceId: runs.workspaceId }).from(runs).where(eq(runs.id, id)).limit(1);

@@ -1,6 +1,5 @@
 import 'server-only';
 import { transaction } from '@/db/client';
-import type { Caller } from '../auth/caller';
 import { AppError } from '../errors';
 import { insertAuditEvent } from '../queries/audit';
 import { getCaseByName, upsertBaseline } from '../queries/projects';
@@ -43,11 +42,4 @@ export async function acceptBaseline(input: { actor: BaselineActor; projectId: s
     );
   });
   return { case: kase.name, branch, runId: ctx.run.id };
-}
-
-/** Baselines decide verdicts, so only people with the maintainer role may set them; never a CI token. */
-export function assertMayAcceptBaseline(caller: Caller): void {
-  if (caller.kind === 'token') {
-    throw new AppError('forbidden:token', 'CI tokens may upload and read only; a maintainer accepts baselines from a signed-in session.');
-  }
 }

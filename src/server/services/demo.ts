@@ -1,5 +1,5 @@
 import 'server-only';
-import { createHash } from 'node:crypto';
+import { createHash, randomBytes } from 'node:crypto';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
@@ -11,7 +11,10 @@ import { cellCentres, formatLongCsv } from '@/src/lib/snapshot-csv';
 import type { TokenCaller } from '../auth/caller';
 import { jobHandlers } from '../jobs';
 import { ANALYSE_RUN_JOB } from '../jobs/names';
+import { hashPassword } from '../auth/password';
+import type { Role } from '../auth/roles';
 import { ensureProject, ensureWorkspace } from '../queries/projects';
+import { getUserByEmail, insertUser, upsertMembership } from '../queries/users';
 import { runUntilIdle } from '../queue';
 import { acceptBaseline } from './baselines';
 import { createRunFromFile } from './runs';
@@ -126,7 +129,7 @@ async function postCase(caller: TokenCaller, dir: string, c: DemoCase, night: nu
   const options = { periodic, velocitySign: 1 as const, ...(c.bounds ? { bounds: c.bounds } : {}) };
   const manifest = { variableOptions: { [c.variable]: options } };
   const { run } = await createRunFromFile({
-    caller,
+    scope: caller,
     target: { build: buildKey, commit, branch: 'main', case: c.name, ciUrl: `https://ci.brackwater.example/builds/${buildKey}`, manifest },
     file: { path: file, fileName: `${c.name}.csv`, contentType: 'text/csv', size: Buffer.byteLength(text), sha256: createHash('sha256').update(text).digest('hex') },
     idempotencyKey: `demo:${buildKey}:${c.name}`,
@@ -154,6 +157,24 @@ interface DemoProject {
   nights: number[];
 }
 
+/** One demo account per role, with a fresh random password each time the demo is seeded. */
+async function seedDemoAccounts(workspaceId: string): Promise<string[]> {
+  const lines: string[] = [];
+  const people: { role: Role; name: string; email: string }[] = [
+    { role: 'admin', name: 'Ines Marlowe', email: 'admin@brackwater.example' },
+    { role: 'maintainer', name: 'Tomas Reeve', email: 'maintainer@brackwater.example' },
+    { role: 'viewer', name: 'Odile Fenwick', email: 'viewer@brackwater.example' },
+  ];
+  for (const p of people) {
+    if (await getUserByEmail({ email: p.email })) continue;
+    const password = randomBytes(12).toString('base64url');
+    const user = await insertUser({ email: p.email, name: p.name, passwordHash: await hashPassword(password), emailVerified: true });
+    await upsertMembership({ workspaceId, userId: user.id, role: p.role });
+    lines.push(`Demo sign-in (${p.role}): ${p.email} / ${password}`);
+  }
+  return lines;
+}
+
 export async function seedDemo(options: { notesFile?: string } = {}): Promise<string> {
   const ws = await ensureWorkspace(DEMO_WORKSPACE);
   const [existing] = await getDb().select({ n: count() }).from(builds).innerJoin(projects, eq(projects.id, builds.projectId)).where(eq(projects.workspaceId, ws.id));
@@ -164,7 +185,7 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
     { slug: 'kestrel-flow', name: 'Kestrel compressible-flow code', cases: flowCases, nights: Array.from({ length: NIGHTS / 3 }, (_, k) => k * 3) },
   ];
   const dir = await mkdtemp(path.join(os.tmpdir(), 'varigate-demo-'));
-  const notes: string[] = [];
+  const notes: string[] = await seedDemoAccounts(ws.id);
   try {
     for (const p of demoProjects) {
       const project = await ensureProject({ workspaceId: ws.id, slug: p.slug, name: p.name });

@@ -1,6 +1,6 @@
 import 'server-only';
 import type { Finding, Variable } from '@/db/schema';
-import { assertProjectAccess, type Caller } from '../auth/caller';
+import type { ProjectScope, RunScope } from '../auth/scope';
 import { env } from '../env';
 import { AppError } from '../errors';
 import { getBuildByKey, listBuildRuns } from '../queries/builds';
@@ -46,20 +46,18 @@ export function findingView(f: Finding) {
   };
 }
 
-/** A run the caller may see, or 404 (never 403: the id of another project's run tells nothing). */
-export async function requireRun(caller: Caller, id: string): Promise<RunContext> {
-  const ctx = await getRunContext({ workspaceId: caller.workspaceId, id });
-  if (!ctx || (caller.kind === 'token' && ctx.run.projectId !== caller.projectId)) {
-    throw new AppError('not_found:run', `No run ${id} in this project.`);
-  }
+/** The run of an already-resolved scope with its names and policies. */
+export async function loadRun(scope: RunScope): Promise<RunContext> {
+  const ctx = await getRunContext({ workspaceId: scope.workspaceId, id: scope.runId });
+  if (!ctx) throw new AppError('not_found:run', `No run ${scope.runId} here.`);
   return ctx;
 }
 
-export async function getRunReport(caller: Caller, id: string): Promise<RunReport> {
-  const ctx = await requireRun(caller, id);
+export async function getRunReport(scope: RunScope): Promise<RunReport> {
+  const ctx = await loadRun(scope);
   const [findings, variables] = await Promise.all([
-    listRunFindings({ workspaceId: caller.workspaceId, runId: id }),
-    listRunVariables({ workspaceId: caller.workspaceId, runId: id }),
+    listRunFindings({ workspaceId: scope.workspaceId, runId: scope.runId }),
+    listRunVariables({ workspaceId: scope.workspaceId, runId: scope.runId }),
   ]);
   const r = ctx.run;
   return {
@@ -83,9 +81,8 @@ export async function getRunReport(caller: Caller, id: string): Promise<RunRepor
 }
 
 /** The per-step series of one variable (the first one when none is named). */
-export async function getRunSeries(caller: Caller, id: string, variableName?: string): Promise<{ variable: string; series: unknown; variables: string[] }> {
-  await requireRun(caller, id);
-  const variables = await listRunVariables({ workspaceId: caller.workspaceId, runId: id });
+export async function getRunSeries(scope: RunScope, variableName?: string): Promise<{ variable: string; series: unknown; variables: string[] }> {
+  const variables = await listRunVariables({ workspaceId: scope.workspaceId, runId: scope.runId });
   if (variables.length === 0) throw new AppError('not_found:series', 'This run has no analysed variables (yet): check its status.');
   const chosen = variableName ? variables.find((v) => v.name === variableName) : variables[0];
   if (!chosen) {
@@ -96,14 +93,13 @@ export async function getRunSeries(caller: Caller, id: string, variableName?: st
 
 const verdictRank: Record<string, number> = { pass: 1, warn: 2, fail: 3, error: 4 };
 
-export async function getBuildReport(caller: Caller, key: string, projectSlug?: string) {
-  assertProjectAccess(caller, projectSlug);
-  const build = await getBuildByKey({ workspaceId: caller.workspaceId, projectId: caller.projectId, key });
-  if (!build) throw new AppError('not_found:build', `No build "${key}" in project "${caller.projectSlug}".`);
-  const runs = await listBuildRuns({ workspaceId: caller.workspaceId, buildId: build.id });
+export async function getBuildReport(scope: ProjectScope, key: string) {
+  const build = await getBuildByKey({ workspaceId: scope.workspaceId, projectId: scope.projectId, key });
+  if (!build) throw new AppError('not_found:build', `No build "${key}" in project "${scope.projectSlug}".`);
+  const runs = await listBuildRuns({ workspaceId: scope.workspaceId, buildId: build.id });
   const worst = await Promise.all(
     runs.map(async (r) => {
-      const findings = await listRunFindings({ workspaceId: caller.workspaceId, runId: r.runId });
+      const findings = await listRunFindings({ workspaceId: scope.workspaceId, runId: r.runId });
       return findings[0] ? findings[0].message : null;
     }),
   );
@@ -112,7 +108,7 @@ export async function getBuildReport(caller: Caller, key: string, projectSlug?: 
   return {
     build: {
       key: build.key,
-      project: caller.projectSlug,
+      project: scope.projectSlug,
       commit: build.commit,
       branch: build.branch,
       ciUrl: build.ciUrl,
@@ -152,9 +148,9 @@ export interface StepValues {
  * fields) and reduced for a chart: 1D decimated keeping local extrema, 2D block-averaged to at
  * most `points` cells, 3D the middle slice of the slowest axis.
  */
-export async function getRunStep(caller: Caller, id: string, stepIndex: number, variableName: string | undefined, points: number): Promise<StepValues> {
-  const ctx = await requireRun(caller, id);
-  const upload = await getUploadForRun({ workspaceId: caller.workspaceId, runId: id });
+export async function getRunStep(scope: RunScope, stepIndex: number, variableName: string | undefined, points: number): Promise<StepValues> {
+  const ctx = await loadRun(scope);
+  const upload = await getUploadForRun({ workspaceId: scope.workspaceId, runId: scope.runId });
   if (!upload) throw new AppError('not_found:upload', 'This run has no stored file.');
   try {
     return await withStoredSnapshots(upload, ctx.run.manifest, async (reader) => {

@@ -4,7 +4,7 @@ import { createReadStream } from 'node:fs';
 import { transaction } from '@/db/client';
 import type { Run } from '@/db/schema';
 import type { RunFromObject, RunTarget } from '@/src/schemas/runs';
-import { assertProjectAccess, type Caller } from '../auth/caller';
+import type { ProjectScope } from '../auth/scope';
 import { env } from '../env';
 import { AppError } from '../errors';
 import { logger } from '../logger';
@@ -30,9 +30,9 @@ interface StoredObject {
   contentType?: string | null;
 }
 
-function objectKeyFor(caller: Caller, fileName: string): string {
+function objectKeyFor(scope: ProjectScope, fileName: string): string {
   const safeName = fileName.replace(/[^A-Za-z0-9._-]/g, '_').slice(-120) || 'upload';
-  return `incoming/${caller.workspaceId}/${caller.projectId}/${randomUUID()}/${safeName}`;
+  return `incoming/${scope.workspaceId}/${scope.projectId}/${randomUUID()}/${safeName}`;
 }
 
 /** SHA-256 over what defines a request, to tell a retry from a different request with a reused key. */
@@ -41,9 +41,9 @@ function requestHash(target: RunTarget, contentSha256: string): string {
   return createHash('sha256').update(canonical).digest('hex');
 }
 
-async function findIdempotentRun(caller: Caller, key: string | undefined, hash: string): Promise<CreatedRun | undefined> {
+async function findIdempotentRun(scope: ProjectScope, key: string | undefined, hash: string): Promise<CreatedRun | undefined> {
   if (!key) return undefined;
-  const existing = await getRunByIdempotencyKey({ projectId: caller.projectId, key });
+  const existing = await getRunByIdempotencyKey({ projectId: scope.projectId, key });
   if (!existing) return undefined;
   if (existing.requestHash !== hash) {
     throw new AppError('conflict:idempotency', 'This Idempotency-Key was already used for a different request (other fields or another file).');
@@ -59,11 +59,11 @@ function isUniqueViolation(err: unknown): boolean {
  * Records a run for a stored object and queues its analysis, all in one transaction: when this
  * returns, the file is in object storage and the run and its job are committed.
  */
-async function recordRun(caller: Caller, target: RunTarget, object: StoredObject, idempotencyKey: string | undefined, hash: string): Promise<CreatedRun> {
+async function recordRun(scope: ProjectScope, target: RunTarget, object: StoredObject, idempotencyKey: string | undefined, hash: string): Promise<CreatedRun> {
   try {
     const run = await transaction(async (tx) => {
       const build = await ensureBuild(
-        { workspaceId: caller.workspaceId, projectId: caller.projectId, key: target.build, commit: target.commit, branch: target.branch, ciUrl: target.ciUrl },
+        { workspaceId: scope.workspaceId, projectId: scope.projectId, key: target.build, commit: target.commit, branch: target.branch, ciUrl: target.ciUrl },
         tx,
       );
       if (build.commit !== target.commit || build.branch !== target.branch) {
@@ -72,11 +72,11 @@ async function recordRun(caller: Caller, target: RunTarget, object: StoredObject
           `Build "${target.build}" was first posted for commit ${build.commit} on ${build.branch}; this upload says ${target.commit} on ${target.branch}.`,
         );
       }
-      const kase = await ensureCase({ workspaceId: caller.workspaceId, projectId: caller.projectId, name: target.case }, tx);
+      const kase = await ensureCase({ workspaceId: scope.workspaceId, projectId: scope.projectId, name: target.case }, tx);
       const created = await insertRun(
         {
-          workspaceId: caller.workspaceId,
-          projectId: caller.projectId,
+          workspaceId: scope.workspaceId,
+          projectId: scope.projectId,
           buildId: build.id,
           caseId: kase.id,
           manifest: { format: target.format ?? null, ...(target.manifest ?? {}) },
@@ -87,7 +87,7 @@ async function recordRun(caller: Caller, target: RunTarget, object: StoredObject
       );
       await insertUpload(
         {
-          workspaceId: caller.workspaceId,
+          workspaceId: scope.workspaceId,
           runId: created.id,
           objectKey: object.objectKey,
           fileName: object.fileName,
@@ -106,7 +106,7 @@ async function recordRun(caller: Caller, target: RunTarget, object: StoredObject
   } catch (err) {
     // Two identical retries racing: the loser finds the winner's run.
     if (idempotencyKey && isUniqueViolation(err)) {
-      const again = await findIdempotentRun(caller, idempotencyKey, hash);
+      const again = await findIdempotentRun(scope, idempotencyKey, hash);
       if (again) return again;
     }
     throw err;
@@ -115,22 +115,21 @@ async function recordRun(caller: Caller, target: RunTarget, object: StoredObject
 
 /** POST /api/v1/runs with multipart: store the spooled file, then record the run. */
 export async function createRunFromFile(input: {
-  caller: Caller;
+  scope: ProjectScope;
   target: RunTarget;
   file: SpooledFile;
   idempotencyKey?: string;
 }): Promise<CreatedRun> {
-  const { caller, target, file, idempotencyKey } = input;
-  assertProjectAccess(caller, target.project);
+  const { scope, target, file, idempotencyKey } = input;
   if (file.size === 0) throw new AppError('invalid:upload', `The file "${file.fileName}" is empty.`);
   const hash = requestHash(target, file.sha256);
-  const earlier = await findIdempotentRun(caller, idempotencyKey, hash);
+  const earlier = await findIdempotentRun(scope, idempotencyKey, hash);
   if (earlier) return earlier;
 
-  const objectKey = objectKeyFor(caller, file.fileName);
+  const objectKey = objectKeyFor(scope, file.fileName);
   await putObject({ key: objectKey, body: createReadStream(file.path), contentLength: file.size, contentType: file.contentType });
   try {
-    return await recordRun(caller, target, { objectKey, fileName: file.fileName, size: file.size, sha256: file.sha256, contentType: file.contentType }, idempotencyKey, hash);
+    return await recordRun(scope, target, { objectKey, fileName: file.fileName, size: file.size, sha256: file.sha256, contentType: file.contentType }, idempotencyKey, hash);
   } catch (err) {
     // The run was not recorded: do not leave an orphan object behind.
     await deleteObject(objectKey).catch((e: unknown) => logger.warn({ err: e, objectKey }, 'could not remove orphan upload'));
@@ -139,10 +138,9 @@ export async function createRunFromFile(input: {
 }
 
 /** POST /api/v1/runs with JSON: the file was uploaded through a presigned URL first. */
-export async function createRunFromObject(input: { caller: Caller; body: RunFromObject; idempotencyKey?: string }): Promise<CreatedRun> {
-  const { caller, body, idempotencyKey } = input;
-  assertProjectAccess(caller, body.project);
-  const ownPrefix = `incoming/${caller.workspaceId}/${caller.projectId}/`;
+export async function createRunFromObject(input: { scope: ProjectScope; body: RunFromObject; idempotencyKey?: string }): Promise<CreatedRun> {
+  const { scope, body, idempotencyKey } = input;
+  const ownPrefix = `incoming/${scope.workspaceId}/${scope.projectId}/`;
   if (!body.objectKey.startsWith(ownPrefix)) {
     throw new AppError('forbidden:upload', 'This objectKey was not issued to this token\'s project; ask POST /api/v1/uploads for one.');
   }
@@ -158,12 +156,12 @@ export async function createRunFromObject(input: { caller: Caller; body: RunFrom
   // presigned key, and must get its earlier run back rather than a conflict.
   const sha256 = await sha256OfObject(body.objectKey);
   const hash = requestHash(body, sha256);
-  const earlier = await findIdempotentRun(caller, idempotencyKey, hash);
+  const earlier = await findIdempotentRun(scope, idempotencyKey, hash);
   if (earlier) {
     return earlier;
   }
   const fileName = body.fileName ?? body.objectKey.split('/').pop() ?? 'upload';
-  return recordRun(caller, body, { objectKey: body.objectKey, fileName, size: head.size, sha256, contentType: head.contentType }, idempotencyKey, hash);
+  return recordRun(scope, body, { objectKey: body.objectKey, fileName, size: head.size, sha256, contentType: head.contentType }, idempotencyKey, hash);
 }
 
 async function sha256OfObject(key: string): Promise<string> {
@@ -173,7 +171,7 @@ async function sha256OfObject(key: string): Promise<string> {
 }
 
 /** POST /api/v1/uploads: a presigned PUT URL for a file too large to post through the app. */
-export async function presignUpload(input: { caller: Caller; fileName: string; size: number; contentType?: string }): Promise<{
+export async function presignUpload(input: { scope: ProjectScope; fileName: string; size: number; contentType?: string }): Promise<{
   objectKey: string;
   url: string;
   method: 'PUT';
@@ -182,7 +180,7 @@ export async function presignUpload(input: { caller: Caller; fileName: string; s
 }> {
   const max = env().VARIGATE_MAX_OBJECT_BYTES;
   if (input.size > max) throw new AppError('too_large:upload', `The file has ${input.size} bytes; the limit is ${max}.`);
-  const objectKey = objectKeyFor(input.caller, input.fileName);
+  const objectKey = objectKeyFor(input.scope, input.fileName);
   const contentType = input.contentType ?? 'application/octet-stream';
   const expiresIn = 900;
   const url = await presignPut({ key: objectKey, contentType, expiresIn });

@@ -1,4 +1,5 @@
 import { requireCaller } from '@/src/server/auth/caller';
+import { resolveProjectScope } from '@/src/server/auth/scope';
 import { env } from '@/src/server/env';
 import { json, parseOrThrow, readJson, route } from '@/src/server/http/handler';
 import { readMultipartUpload } from '@/src/server/http/multipart';
@@ -29,7 +30,10 @@ function runUrl(id: string): string {
   return `${env().APP_URL}/api/v1/runs/${id}`;
 }
 
-/** Posts one regression case of a CI build: multipart with a file, or JSON naming an uploaded object. */
+/**
+ * Posts one regression case of a CI build: multipart with a file, or JSON naming an uploaded
+ * object. CI tokens post to their project; signed-in maintainers name `workspace` and `project`.
+ */
 export const POST = route(async (request) => {
   const caller = await requireCaller(request);
   const idempotencyKey = idempotencyKeyOf(request);
@@ -37,7 +41,8 @@ export const POST = route(async (request) => {
 
   if (contentType.toLowerCase().startsWith('application/json')) {
     const body = parseOrThrow(runFromObjectSchema, 'run', await readJson(request));
-    const { run, created } = await createRunFromObject({ caller, body, idempotencyKey });
+    const scope = await resolveProjectScope(caller, body, 'maintainer');
+    const { run, created } = await createRunFromObject({ scope, body, idempotencyKey });
     return json({ run: { ...run, url: runUrl(run.id) } }, created ? 202 : 200);
   }
 
@@ -46,7 +51,8 @@ export const POST = route(async (request) => {
     const { file: _file, manifest, ...rest } = upload.fields;
     const target = parseOrThrow(runTargetSchema, 'run', { ...rest, manifest: manifestField(manifest) });
     if (!upload.file) throw new AppError('invalid:upload', 'No file: send the snapshot file in a part named `file`.');
-    const { run, created } = await createRunFromFile({ caller, target, file: upload.file, idempotencyKey });
+    const scope = await resolveProjectScope(caller, target, 'maintainer');
+    const { run, created } = await createRunFromFile({ scope, target, file: upload.file, idempotencyKey });
     return json({ run: { ...run, url: runUrl(run.id) } }, created ? 202 : 200);
   } finally {
     await upload.cleanup();

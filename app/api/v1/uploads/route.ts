@@ -1,4 +1,5 @@
 import { requireCaller } from '@/src/server/auth/caller';
+import { resolveProjectScope } from '@/src/server/auth/scope';
 import { json, parseOrThrow, readJson, route } from '@/src/server/http/handler';
 import { presignUpload } from '@/src/server/services/runs';
 import { presignRequestSchema } from '@/src/schemas/runs';
@@ -9,5 +10,6 @@ export const dynamic = 'force-dynamic';
 export const POST = route(async (request) => {
   const caller = await requireCaller(request);
   const body = parseOrThrow(presignRequestSchema, 'upload', await readJson(request));
-  return json({ upload: await presignUpload({ caller, ...body }) }, 201);
+  const scope = await resolveProjectScope(caller, body, 'maintainer');
+  return json({ upload: await presignUpload({ scope, fileName: body.fileName, size: body.size, contentType: body.contentType }) }, 201);
 });

@@ -1,4 +1,5 @@
 import { requireCaller } from '@/src/server/auth/caller';
+import { resolveRunScope } from '@/src/server/auth/scope';
 import { json, parseOrThrow, route } from '@/src/server/http/handler';
 import { getRunReport } from '@/src/server/services/reports';
 import { runIdSchema } from '@/src/schemas/runs';
@@ -9,5 +10,6 @@ export const dynamic = 'force-dynamic';
 export const GET = route<{ id: string }>(async (request, params) => {
   const caller = await requireCaller(request);
   const id = parseOrThrow(runIdSchema, 'run', params.id);
-  return json(await getRunReport(caller, id));
+  const scope = await resolveRunScope(caller, id);
+  return json(await getRunReport(scope));
 });

@@ -1,19 +1,20 @@
-import { requireCaller } from '@/src/server/auth/caller';
+import { requireCaller, requireUserCaller } from '@/src/server/auth/caller';
+import { resolveProjectScope } from '@/src/server/auth/scope';
 import { json, parseOrThrow, readJson, route } from '@/src/server/http/handler';
-import { acceptBaseline, assertMayAcceptBaseline } from '@/src/server/services/baselines';
+import { acceptBaseline } from '@/src/server/services/baselines';
 import { baselineRequestSchema, slugSchema } from '@/src/schemas/runs';
 
 export const dynamic = 'force-dynamic';
 
-/** Accepts a run as the baseline of its case (maintainers, signed in). */
+/** Accepts a run as the baseline of its case: signed-in maintainers only, never a CI token. */
 export const POST = route<{ case: string }>(async (request, params) => {
-  const caller = await requireCaller(request);
-  assertMayAcceptBaseline(caller);
+  const caller = requireUserCaller(await requireCaller(request));
   const caseName = parseOrThrow(slugSchema, 'case', decodeURIComponent(params.case));
   const body = parseOrThrow(baselineRequestSchema, 'baseline', await readJson(request));
+  const scope = await resolveProjectScope(caller, body, 'maintainer');
   const baseline = await acceptBaseline({
-    actor: { workspaceId: caller.workspaceId },
-    projectId: caller.projectId,
+    actor: { workspaceId: scope.workspaceId, userId: caller.userId },
+    projectId: scope.projectId,
     caseName,
     runId: body.run,
     branch: body.branch,

@@ -1,0 +1,3 @@
+import { handlers } from '@/src/server/auth/config';
+
+export const { GET, POST } = handlers;
