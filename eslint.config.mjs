@@ -6,7 +6,7 @@ import drizzle from 'eslint-plugin-drizzle';
 export default defineConfig([
   ...nextVitals,
   ...nextTs,
-  globalIgnores(['.next/**', '.next-test/**', '.data/**', 'node_modules/**', 'next-env.d.ts', 'migrations/**', 'fixtures/**']),
+  globalIgnores(['.next/**', '.next-test*/**', '.data/**', 'node_modules/**', 'next-env.d.ts', 'migrations/**', 'fixtures/**']),
   {
     // A delete or update without `where` on a drizzle table is almost always a bug.
     plugins: { drizzle },

@@ -16,6 +16,8 @@ const ownFlags = ['--skip-build', '--skip-checks'];
 const skipBuild = process.argv.includes('--skip-build');
 const skipChecks = process.argv.includes('--skip-checks');
 const vitestArgs = process.argv.slice(2).filter((a) => !ownFlags.includes(a));
+// Several people (or agents) iterating on one checkout each keep their own test build.
+const distDir = process.env.VARIGATE_TEST_DIST_DIR ?? '.next-test';
 const children = new Children();
 let tmpDir;
 let stopServices;
@@ -62,7 +64,7 @@ async function main() {
     AUTH_URL: appUrl,
     AUTH_SECRET: 'test-secret-that-is-long-enough-0123456789',
     NEXT_TELEMETRY_DISABLED: '1',
-    NEXT_DIST_DIR: '.next-test',
+    NEXT_DIST_DIR: distDir,
     LOG_LEVEL: 'warn',
     LOG_FORMAT: 'json',
     VARIGATE_JOB_LEASE_SECONDS: '6',
@@ -79,7 +81,7 @@ async function main() {
   }
   say('migrations');
   run(bin('tsx'), ['scripts/migrate.ts'], env);
-  if (!skipBuild || !fs.existsSync(path.join(root, '.next-test', 'BUILD_ID'))) {
+  if (!skipBuild || !fs.existsSync(path.join(root, distDir, 'BUILD_ID'))) {
     say('production build (next build)');
     run(bin('next'), ['build'], { ...env, NODE_ENV: 'production' });
   }
