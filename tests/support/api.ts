@@ -8,6 +8,7 @@ import { appUrl } from './env';
 
 export interface TestProject {
   workspaceId: string;
+  workspaceSlug: string;
   projectId: string;
   slug: string;
   token: string;
@@ -17,10 +18,11 @@ export interface TestProject {
 /** A fresh workspace with one project and a CI token, named so runs never collide. */
 export async function createTestProject(slug = 'saltmarsh'): Promise<TestProject> {
   const suffix = randomUUID().slice(0, 8);
-  const ws = await ensureWorkspace({ slug: `test-${suffix}`, name: `Test workspace ${suffix}` });
+  const workspaceSlug = `test-${suffix}`;
+  const ws = await ensureWorkspace({ slug: workspaceSlug, name: `Test workspace ${suffix}` });
   const project = await ensureProject({ workspaceId: ws.id, slug, name: `Saltmarsh tracer model ${suffix}` });
   const issued = await issueToken({ workspaceId: ws.id, projectId: project.id, name: 'test' });
-  return { workspaceId: ws.id, projectId: project.id, slug, token: issued.token, tokenId: issued.id };
+  return { workspaceId: ws.id, workspaceSlug, projectId: project.id, slug, token: issued.token, tokenId: issued.id };
 }
 
 export const fixturePath = (...parts: string[]): string => path.join(process.cwd(), 'fixtures', ...parts);

@@ -1,6 +1,7 @@
 import 'server-only';
 import { and, asc, desc, eq } from 'drizzle-orm';
 import { getDb, type Executor } from '@/db/client';
+import { worstFindingOrder } from './finding-order';
 import { builds, cases, findings, projects, runs, uploads, variables, type Finding, type Run, type Upload, type Variable } from '@/db/schema';
 
 export async function insertRun(
@@ -126,7 +127,7 @@ export async function listRunFindings({ workspaceId, runId }: { workspaceId: str
     .select()
     .from(findings)
     .where(and(eq(findings.workspaceId, workspaceId), eq(findings.runId, runId)))
-    .orderBy(desc(findings.severity), asc(findings.step), asc(findings.variable));
+    .orderBy(worstFindingOrder('findings'), asc(findings.variable));
 }
 
 export async function markRunAnalysing({ id }: { id: string }): Promise<void> {

@@ -1,6 +1,6 @@
 import 'server-only';
 import { createHash, randomBytes } from 'node:crypto';
-import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { appendFile, mkdtemp, rm, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
 import { and, count, eq, inArray } from 'drizzle-orm';
@@ -175,8 +175,14 @@ async function seedDemoAccounts(workspaceId: string): Promise<string[]> {
   return lines;
 }
 
+/** Secrets made for the demo are appended to the notes file, which `npm start` prints. */
+async function keepNotes(file: string | undefined, lines: string[]): Promise<void> {
+  if (file && lines.length > 0) await appendFile(file, `${lines.join('\n')}\n`, { mode: 0o600 });
+}
+
 export async function seedDemo(options: { notesFile?: string } = {}): Promise<string> {
   const ws = await ensureWorkspace(DEMO_WORKSPACE);
+  await keepNotes(options.notesFile, await seedDemoAccounts(ws.id));
   const [existing] = await getDb().select({ n: count() }).from(builds).innerJoin(projects, eq(projects.id, builds.projectId)).where(eq(projects.workspaceId, ws.id));
   if ((existing?.n ?? 0) > 0) return 'demo data already present';
 
@@ -185,7 +191,7 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
     { slug: 'kestrel-flow', name: 'Kestrel compressible-flow code', cases: flowCases, nights: Array.from({ length: NIGHTS / 3 }, (_, k) => k * 3) },
   ];
   const dir = await mkdtemp(path.join(os.tmpdir(), 'varigate-demo-'));
-  const notes: string[] = await seedDemoAccounts(ws.id);
+  const notes: string[] = [];
   try {
     for (const p of demoProjects) {
       const project = await ensureProject({ workspaceId: ws.id, slug: p.slug, name: p.name });
@@ -211,7 +217,7 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
-  if (options.notesFile) await writeFile(options.notesFile, `${notes.join('\n')}\n`, { mode: 0o600 });
+  await keepNotes(options.notesFile, notes);
   const [total] = await getDb().select({ n: count() }).from(runs).where(eq(runs.workspaceId, ws.id));
   const [left] = await getDb().select({ n: count() }).from(jobs).where(and(eq(jobs.kind, ANALYSE_RUN_JOB), inArray(jobs.status, ['queued', 'running'])));
   return `seeded workspace ${DEMO_WORKSPACE.slug}: ${total?.n ?? 0} runs${left?.n ? `, ${left.n} still queued` : ''}`;
