@@ -227,4 +227,28 @@ describe('POST /api/v1/runs and the analysis worker', () => {
       .set('Authorization', `Bearer ${project.token}`);
     expect(missing.status).toBe(404);
   });
+
+  it('reads HDF5 uploads: the float64 Lax-Wendroff file fails, the float32 van Leer file passes, and a step is served from HDF5', async () => {
+    const lw = await postRun(project.token, { build: 'nightly-109', case: 'h5-lw' }, { path: fixturePath('snapshots', 'tophat-lax-wendroff.h5') });
+    const vl = await postRun(project.token, { build: 'nightly-109', case: 'h5-vl' }, { path: fixturePath('snapshots', 'tophat-van-leer-float32.h5') });
+    expect(lw.status).toBe(202);
+    const lwReport = await waitForRun(project.token, lw.body.run.id);
+    const vlReport = await waitForRun(project.token, vl.body.run.id);
+    expect(lwReport.run.verdict).toBe('fail');
+    expect(vlReport.run.verdict).toBe('pass');
+    expect(vlReport.variables[0].precision).toBe('float32');
+    const series = await request(appUrl()).get(`/api/v1/runs/${lw.body.run.id}/series`).set('Authorization', `Bearer ${project.token}`);
+    const step = await request(appUrl())
+      .get(`/api/v1/runs/${lw.body.run.id}/steps/${series.body.series.index[2]}?points=64`)
+      .set('Authorization', `Bearer ${project.token}`);
+    expect(step.status).toBe(200);
+    expect(step.body.values.length).toBeGreaterThan(0);
+  });
+
+  it('ends a truncated HDF5 file in verdict error naming the problem', async () => {
+    const res = await postRun(project.token, { build: 'nightly-110', case: 'h5-truncated' }, { path: fixturePath('snapshots', 'truncated.h5') });
+    const report = await waitForRun(project.token, res.body.run.id);
+    expect(report.run.verdict).toBe('error');
+    expect(report.run.errorMessage).toMatch(/HDF5|truncated/i);
+  });
 });
