@@ -30,6 +30,20 @@ export const verdictEnum = pgEnum('verdict', ['pass', 'warn', 'fail', 'error']);
 export const severityEnum = pgEnum('severity', ['warn', 'fail']);
 export const jobStatusEnum = pgEnum('job_status', ['queued', 'running', 'done', 'dead']);
 
+/** The owning workspace (or project, or run): rows go when their owner goes. */
+const workspaceRef = () =>
+  uuid('workspace_id')
+    .notNull()
+    .references(() => workspaces.id, { onDelete: 'cascade' });
+const projectRef = () =>
+  uuid('project_id')
+    .notNull()
+    .references(() => projects.id, { onDelete: 'cascade' });
+const runRef = () =>
+  uuid('run_id')
+    .notNull()
+    .references(() => runs.id, { onDelete: 'cascade' });
+
 export const workspaces = pgTable('workspaces', {
   id: uuid('id').primaryKey().defaultRandom(),
   slug: text('slug').notNull().unique(),
@@ -52,9 +66,7 @@ export type User = typeof users.$inferSelect;
 export const memberships = pgTable(
   'memberships',
   {
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
     userId: uuid('user_id')
       .notNull()
       .references(() => users.id, { onDelete: 'cascade' }),
@@ -69,9 +81,7 @@ export const projects = pgTable(
   'projects',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
     slug: text('slug').notNull(),
     name: text('name').notNull(),
     defaultBranch: text('default_branch').notNull().default('main'),
@@ -87,12 +97,8 @@ export const cases = pgTable(
   'cases',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    projectId: uuid('project_id')
-      .notNull()
-      .references(() => projects.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    projectId: projectRef(),
     name: text('name').notNull(),
     /** Partial policy overriding the project's default for this case. */
     policy: jsonb('policy').notNull().default({}),
@@ -106,12 +112,8 @@ export const builds = pgTable(
   'builds',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    projectId: uuid('project_id')
-      .notNull()
-      .references(() => projects.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    projectId: projectRef(),
     /** The CI's own build id; unique within a project. */
     key: text('key').notNull(),
     commit: text('commit').notNull(),
@@ -136,12 +138,8 @@ export const runs = pgTable(
   'runs',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    projectId: uuid('project_id')
-      .notNull()
-      .references(() => projects.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    projectId: projectRef(),
     buildId: uuid('build_id')
       .notNull()
       .references(() => builds.id, { onDelete: 'cascade' }),
@@ -178,12 +176,8 @@ export const uploads = pgTable(
   'uploads',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    runId: uuid('run_id')
-      .notNull()
-      .references(() => runs.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    runId: runRef(),
     objectKey: text('object_key').notNull(),
     fileName: text('file_name').notNull(),
     size: bigint('size', { mode: 'number' }).notNull(),
@@ -204,12 +198,8 @@ export const variables = pgTable(
   'variables',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    runId: uuid('run_id')
-      .notNull()
-      .references(() => runs.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    runId: runRef(),
     name: text('name').notNull(),
     shape: integer('shape').array().notNull(),
     precision: text('precision').notNull(),
@@ -225,12 +215,8 @@ export const findings = pgTable(
   'findings',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    runId: uuid('run_id')
-      .notNull()
-      .references(() => runs.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    runId: runRef(),
     variable: text('variable').notNull(),
     kind: text('kind').notNull(),
     severity: severityEnum('severity').notNull(),
@@ -252,16 +238,12 @@ export const baselines = pgTable(
   'baselines',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
     caseId: uuid('case_id')
       .notNull()
       .references(() => cases.id, { onDelete: 'cascade' }),
     branch: text('branch').notNull(),
-    runId: uuid('run_id')
-      .notNull()
-      .references(() => runs.id, { onDelete: 'cascade' }),
+    runId: runRef(),
     acceptedBy: uuid('accepted_by').references(() => users.id, { onDelete: 'set null' }),
     acceptedByToken: uuid('accepted_by_token'),
     acceptedAt: timestamp('accepted_at', { withTimezone: true }).notNull().defaultNow(),
@@ -274,12 +256,8 @@ export const tokens = pgTable(
   'tokens',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    projectId: uuid('project_id')
-      .notNull()
-      .references(() => projects.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    projectId: projectRef(),
     name: text('name').notNull(),
     /** The first characters of the secret, shown in lists so people can tell tokens apart. */
     prefix: text('prefix').notNull(),
@@ -297,12 +275,8 @@ export const subscriptions = pgTable(
   'subscriptions',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
-    projectId: uuid('project_id')
-      .notNull()
-      .references(() => projects.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
+    projectId: projectRef(),
     /** Null for a mailing-list address subscribed by a maintainer. */
     userId: uuid('user_id').references(() => users.id, { onDelete: 'cascade' }),
     email: text('email').notNull(),
@@ -322,9 +296,7 @@ export const auditEvents = pgTable(
   'audit_events',
   {
     id: bigserial('id', { mode: 'number' }).primaryKey(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
     actorUserId: uuid('actor_user_id'),
     actorTokenId: uuid('actor_token_id'),
     action: text('action').notNull(),
@@ -388,9 +360,7 @@ export const invitations = pgTable(
   'invitations',
   {
     id: uuid('id').primaryKey().defaultRandom(),
-    workspaceId: uuid('workspace_id')
-      .notNull()
-      .references(() => workspaces.id, { onDelete: 'cascade' }),
+    workspaceId: workspaceRef(),
     email: text('email').notNull(),
     role: roleEnum('role').notNull(),
     tokenHash: text('token_hash').notNull().unique(),
