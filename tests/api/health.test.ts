@@ -40,4 +40,16 @@ describe('GET /api/health', () => {
     }
     expect(status).toBe(200);
   });
+
+  it('carries the security headers, with the running object store allowed for uploads', async () => {
+    for (const path of ['/api/health', '/sign-in']) {
+      const res = await request(appUrl()).get(path);
+      const csp = res.headers['content-security-policy'] as string;
+      expect(csp, path).toContain("frame-ancestors 'none'");
+      expect(csp, path).toContain(`connect-src 'self' ${new URL(required('S3_ENDPOINT')).origin}`);
+      expect(res.headers['x-frame-options'], path).toBe('DENY');
+      expect(res.headers['referrer-policy'], path).toBe('strict-origin-when-cross-origin');
+      expect(res.headers['x-content-type-options'], path).toBe('nosniff');
+    }
+  });
 });
