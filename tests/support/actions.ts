@@ -82,19 +82,22 @@ export function actionResultOf(raw: string): unknown {
   return row === undefined ? undefined : JSON.parse(row);
 }
 
+/** The arguments a `useActionState` form passes: the previous state, then the form's fields. */
+export function formArgs(fields: Record<string, string>, previous: unknown = {}): unknown[] {
+  const form = new FormData();
+  for (const [k, v] of Object.entries(fields)) form.append(k, v);
+  return [previous, form];
+}
+
 export async function callAction(input: {
   key: string;
   page: string;
-  fields?: Record<string, string>;
+  args: unknown[];
   cookie?: string;
   headers?: Record<string, string>;
-  /** The arguments before the form (the previous state for `useActionState` actions). */
-  leading?: unknown[];
   origin?: string;
 }): Promise<ActionAnswer> {
-  const form = new FormData();
-  for (const [k, v] of Object.entries(input.fields ?? {})) form.append(k, v);
-  const body = await encodeReply([...(input.leading ?? [{}]), form]);
+  const body = await encodeReply(input.args);
   const headers: Record<string, string> = {
     'Next-Action': actionId(input.key),
     Accept: 'text/x-component',

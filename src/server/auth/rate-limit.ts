@@ -20,8 +20,13 @@ export async function noteSignInAttempt(input: { email: string; ip: string; succ
   await recordSignInAttempt(input);
 }
 
-/** The client's address as the proxy in front of us reports it, else the socket's (unknown here). */
+/**
+ * The client's address as the proxy in front of us saw it. A proxy appends the address it saw
+ * to X-Forwarded-For, after whatever the client wrote there itself, so only the last entry can
+ * be trusted; the first is the client's own claim and would let anyone dodge the per-address
+ * limit. (Without a proxy, Next sets the header to the socket's address when it is absent.)
+ */
 export function clientAddress(headers: Headers): string {
-  const forwarded = headers.get('x-forwarded-for')?.split(',')[0]?.trim();
+  const forwarded = headers.get('x-forwarded-for')?.split(',').at(-1)?.trim();
   return forwarded || headers.get('x-real-ip') || 'unknown';
 }

@@ -1,5 +1,6 @@
 import 'server-only';
 import { and, asc, count, eq, gt, isNull, sql } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/pg-core';
 import { getDb, type Executor } from '@/db/client';
 import { invitations, memberships, signInAttempts, signInTokens, users, workspaces, type Invitation, type User } from '@/db/schema';
 import type { Role } from '../auth/roles';
@@ -115,6 +116,34 @@ export async function deleteMembership({ workspaceId, userId }: { workspaceId: s
   return rows.length > 0;
 }
 
+/**
+ * Locks the workspace row until the transaction ends. Every change to a workspace's members
+ * takes this lock first, so two concurrent changes cannot both see "another admin is left".
+ */
+export async function lockWorkspaceMembers({ workspaceId }: { workspaceId: string }, db: Executor): Promise<boolean> {
+  const rows = await db.select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.id, workspaceId)).for('update');
+  return rows.length > 0;
+}
+
+export async function getMember({ workspaceId, userId }: { workspaceId: string; userId: string }, db: Executor = getDb()): Promise<MemberRow | undefined> {
+  const rows = await db
+    .select({ userId: users.id, email: users.email, name: users.name, role: memberships.role, joinedAt: memberships.createdAt })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
+    .limit(1);
+  return rows[0];
+}
+
+export async function setMemberRole({ workspaceId, userId, role }: { workspaceId: string; userId: string; role: Role }, db: Executor = getDb()): Promise<boolean> {
+  const rows = await db
+    .update(memberships)
+    .set({ role })
+    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
+    .returning({ userId: memberships.userId });
+  return rows.length > 0;
+}
+
 // ------------------------------------------------------------------ one-time links
 
 export async function insertSignInToken(input: { email: string; userId: string | null; purpose: 'sign-in' | 'reset'; tokenHash: string; expiresAt: Date }): Promise<void> {
@@ -169,13 +198,60 @@ export async function listPendingInvitations({ workspaceId }: { workspaceId: str
     .orderBy(asc(invitations.createdAt));
 }
 
-export async function revokeInvitation({ workspaceId, id }: { workspaceId: string; id: string }): Promise<boolean> {
-  const rows = await getDb()
+export async function revokeInvitation({ workspaceId, id }: { workspaceId: string; id: string }, db: Executor = getDb()): Promise<boolean> {
+  const rows = await db
     .update(invitations)
     .set({ revokedAt: new Date() })
-    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.id, id), isNull(invitations.acceptedAt)))
+    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.id, id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
     .returning({ id: invitations.id });
   return rows.length > 0;
+}
+
+export interface PendingInvitationRow {
+  id: string;
+  email: string;
+  role: Role;
+  invitedByEmail: string | null;
+  createdAt: Date;
+  expiresAt: Date;
+}
+
+const inviter = alias(users, 'inviter');
+
+/** Live invitations of a workspace with who sent them, oldest first. */
+export async function listPendingInvitationRows({ workspaceId }: { workspaceId: string }): Promise<PendingInvitationRow[]> {
+  return getDb()
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      invitedByEmail: inviter.email,
+      createdAt: invitations.createdAt,
+      expiresAt: invitations.expiresAt,
+    })
+    .from(invitations)
+    .leftJoin(inviter, eq(inviter.id, invitations.invitedBy))
+    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .orderBy(asc(invitations.createdAt));
+}
+
+export async function getInvitationById({ workspaceId, id }: { workspaceId: string; id: string }, db: Executor = getDb()): Promise<Invitation | undefined> {
+  const rows = await db
+    .select()
+    .from(invitations)
+    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.id, id)))
+    .limit(1);
+  return rows[0];
+}
+
+/** Revokes the unused invitations of one address (a new invitation replaces them); their ids. */
+export async function revokePendingInvitationsFor({ workspaceId, email }: { workspaceId: string; email: string }, db: Executor = getDb()): Promise<string[]> {
+  const rows = await db
+    .update(invitations)
+    .set({ revokedAt: new Date() })
+    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.email, normaliseEmail(email)), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+    .returning({ id: invitations.id });
+  return rows.map((r) => r.id);
 }
 
 // ------------------------------------------------------------------ rate limiting

@@ -26,7 +26,7 @@ describe('describeAuditEvent', () => {
 
   it('shows an action it does not know with its target and details, so no event is hidden', () => {
     expect(describeAuditEvent(event('webhook.remove', { email: 'list@fen.example' }, 'sub-1'))).toBe(
-      'subscription.remove user sub-1 {"email":"list@fen.example"}',
+      'webhook.remove user sub-1 {"email":"list@fen.example"}',
     );
   });
 
