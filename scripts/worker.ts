@@ -8,10 +8,13 @@ import { env } from '@/src/server/env';
 import { jobHandlers } from '@/src/server/jobs';
 import { logger } from '@/src/server/logger';
 import { startWorker } from '@/src/server/queue';
+import { kickOffDigestScheduler } from '@/src/server/services/digests';
 
 env(); // fail fast on a bad environment
 const worker = startWorker({ handlers: jobHandlers });
 logger.info({ workerId: worker.workerId, kinds: Object.keys(jobHandlers) }, 'worker started');
+// The digest scheduler is a self-rescheduling hourly job; make sure this hour's tick exists.
+kickOffDigestScheduler().catch((err: unknown) => logger.error({ err }, 'could not start the digest scheduler; the next worker start retries'));
 
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {

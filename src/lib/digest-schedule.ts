@@ -102,7 +102,11 @@ function offsetAt(instant: number, timeZone: string): number {
  * does not exist (the hour skipped when summer time starts) maps to the first instant after the
  * gap; one that exists twice (the hour repeated when it ends) maps to the first occurrence.
  */
-export function zonedTimeToInstant(date: { year: number; month: number; day: number }, hour: number, timeZone: string): Date {
+export function zonedTimeToInstant(
+  date: { year: number; month: number; day: number },
+  hour: number,
+  timeZone: string,
+): Date {
   const wall = Date.UTC(date.year, date.month - 1, date.day, hour);
   // Try the offsets in force a day either side; keep the earliest instant that reads `wall`.
   const candidates = [offsetAt(wall - DAY_MS, timeZone), offsetAt(wall, timeZone), offsetAt(wall + DAY_MS, timeZone)];
@@ -116,7 +120,10 @@ export function zonedTimeToInstant(date: { year: number; month: number; day: num
 }
 
 /** The calendar date `days` away from `date` (negative for earlier). */
-export function addDays(date: { year: number; month: number; day: number }, days: number): { year: number; month: number; day: number } {
+export function addDays(
+  date: { year: number; month: number; day: number },
+  days: number,
+): { year: number; month: number; day: number } {
   const d = new Date(Date.UTC(date.year, date.month - 1, date.day) + days * DAY_MS);
   return { year: d.getUTCFullYear(), month: d.getUTCMonth() + 1, day: d.getUTCDate() };
 }
@@ -150,7 +157,10 @@ export function latestDigestPeriod(timing: DigestTiming, now: Date): DigestPerio
 }
 
 /** The period whose digest is due on the local date `dueDate` at the subscription's hour. */
-export function periodEndingOn(dueDate: { year: number; month: number; day: number }, timing: Pick<DigestTiming, 'digestHour' | 'timeZone'>): DigestPeriod {
+export function periodEndingOn(
+  dueDate: { year: number; month: number; day: number },
+  timing: Pick<DigestTiming, 'digestHour' | 'timeZone'>,
+): DigestPeriod {
   return {
     key: isoWeekKey(dueDate),
     end: zonedTimeToInstant(dueDate, timing.digestHour, timing.timeZone),

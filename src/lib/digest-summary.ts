@@ -95,7 +95,10 @@ export function passRateOf(runs: readonly Pick<CaseRunRow, 'verdict'>[]): PassRa
 
 /** Orders runs as the branch saw them: by build start, then build id (a stable tie-break). */
 export function byBuildOrder(a: CaseRunRow, b: CaseRunRow): number {
-  return a.buildStartedAt.getTime() - b.buildStartedAt.getTime() || (a.buildId < b.buildId ? -1 : a.buildId > b.buildId ? 1 : 0);
+  return (
+    a.buildStartedAt.getTime() - b.buildStartedAt.getTime() ||
+    (a.buildId < b.buildId ? -1 : a.buildId > b.buildId ? 1 : 0)
+  );
 }
 
 type CaseState = 'ok' | 'failing' | 'new';
@@ -143,7 +146,13 @@ export function summariseDigest(input: {
       fixed.delete(r.caseId);
       state.set(r.caseId, 'failing');
     } else if (r.verdict !== 'fail' && was === 'failing') {
-      fixed.set(r.caseId, { caseId: r.caseId, caseName: r.caseName, buildKey: r.buildKey, startedAt: r.buildStartedAt, runId: r.runId });
+      fixed.set(r.caseId, {
+        caseId: r.caseId,
+        caseName: r.caseName,
+        buildKey: r.buildKey,
+        startedAt: r.buildStartedAt,
+        runId: r.runId,
+      });
       startedFailing.delete(r.caseId);
       state.set(r.caseId, 'ok');
     } else if (r.verdict !== 'fail') {
@@ -160,7 +169,10 @@ export function summariseDigest(input: {
   const open = input.openStreaks.filter((s) => state.get(s.caseId) === 'failing' && active.has(s.caseId));
   const longestFailing =
     [...open].sort(
-      (a, b) => a.sinceStartedAt.getTime() - b.sinceStartedAt.getTime() || b.failingBuilds - a.failingBuilds || a.caseName.localeCompare(b.caseName),
+      (a, b) =>
+        a.sinceStartedAt.getTime() - b.sinceStartedAt.getTime() ||
+        b.failingBuilds - a.failingBuilds ||
+        a.caseName.localeCompare(b.caseName),
     )[0] ?? null;
 
   const verdictCounts: Record<Verdict, number> = { pass: 0, warn: 0, fail: 0, error: 0 };
@@ -169,7 +181,9 @@ export function summariseDigest(input: {
   const passRate = passRateOf(week);
   const previousPassRate = passRateOf(previous);
   const passRateChange =
-    passRate.rate !== null && previousPassRate.rate !== null ? roundTo((passRate.rate - previousPassRate.rate) * 100, 1) : null;
+    passRate.rate !== null && previousPassRate.rate !== null
+      ? roundTo((passRate.rate - previousPassRate.rate) * 100, 1)
+      : null;
 
   const byStart = (a: { startedAt: Date; caseName: string }, b: { startedAt: Date; caseName: string }) =>
     a.startedAt.getTime() - b.startedAt.getTime() || a.caseName.localeCompare(b.caseName);

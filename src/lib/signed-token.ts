@@ -10,7 +10,8 @@ import { createHmac, timingSafeEqual } from 'node:crypto';
  * never verifies for another even if the payloads look alike.
  */
 
-export type TokenCheck<T> = { ok: true; payload: T; expiresAt: Date } | { ok: false; reason: 'malformed' | 'signature' | 'expired' };
+export type TokenCheck<T> =
+  { ok: true; payload: T; expiresAt: Date } | { ok: false; reason: 'malformed' | 'signature' | 'expired' };
 
 export function deriveKey(secret: string, purpose: string): Buffer {
   return createHmac('sha256', secret).update(`varigate:${purpose}:v1`).digest();
@@ -21,14 +22,21 @@ function sign(key: Buffer, body: string): string {
 }
 
 export function signToken(key: Buffer, payload: Record<string, unknown>, expiresAt: Date): string {
-  const body = Buffer.from(JSON.stringify({ ...payload, exp: Math.floor(expiresAt.getTime() / 1000) })).toString('base64url');
+  const body = Buffer.from(JSON.stringify({ ...payload, exp: Math.floor(expiresAt.getTime() / 1000) })).toString(
+    'base64url',
+  );
   return `${body}.${sign(key, body)}`;
 }
 
 /** Checks the signature first (constant time), then the expiry; never throws. */
-export function verifyToken<T = Record<string, unknown>>(key: Buffer, token: string, now: Date = new Date()): TokenCheck<T> {
+export function verifyToken<T = Record<string, unknown>>(
+  key: Buffer,
+  token: string,
+  now: Date = new Date(),
+): TokenCheck<T> {
   const parts = token.split('.');
-  if (parts.length !== 2 || !parts[0] || !parts[1] || !/^[A-Za-z0-9_-]+$/.test(parts[0] + parts[1])) return { ok: false, reason: 'malformed' };
+  if (parts.length !== 2 || !parts[0] || !parts[1] || !/^[A-Za-z0-9_-]+$/.test(parts[0] + parts[1]))
+    return { ok: false, reason: 'malformed' };
   const [body, mac] = parts as [string, string];
   const expected = Buffer.from(sign(key, body), 'base64url');
   const given = Buffer.from(mac, 'base64url');

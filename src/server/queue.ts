@@ -94,7 +94,7 @@ async function fail(sql: Sql, job: JobRow, workerId: string, error: string, perm
       status = ${dead ? 'dead' : 'queued'},
       run_at = now() + make_interval(secs => ${dead ? 0 : backoffSeconds(job.attempts)}),
       last_error = ${error.slice(0, 4000)}, locked_by = null, locked_until = null,
-      finished_at = ${dead ? new Date() : null}
+      finished_at = case when ${dead} then now() else null end
     where id = ${job.id} and locked_by = ${workerId}`;
 }
 

@@ -494,7 +494,8 @@ interface RouteRow {
 
 function withCredentials(req: request.Test, f: Fixture, who: Caller): request.Test {
   const c = credentials(f, who);
-  if (c.cookie) req = req.set('Cookie', c.cookie);
+  // A browser attaches the page's Origin to every write; session writes without it are refused.
+  if (c.cookie) req = req.set('Cookie', c.cookie).set('Origin', new URL(appUrl()).origin);
   for (const [k, v] of Object.entries(c.headers)) req = req.set(k, v);
   return req;
 }

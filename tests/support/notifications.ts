@@ -19,7 +19,10 @@ export function uniqueAddress(local: string): string {
 }
 
 /** Digest timing whose latest due moment is the start of the current local hour in `timeZone`. */
-export function timingDueNow(timeZone: string, now: Date = new Date()): { digestDay: number; digestHour: number; timeZone: string; period: DigestPeriod } {
+export function timingDueNow(
+  timeZone: string,
+  now: Date = new Date(),
+): { digestDay: number; digestHour: number; timeZone: string; period: DigestPeriod } {
   const local = localDateTime(now, timeZone);
   const timing = { digestDay: local.weekday, digestHour: local.hour, timeZone };
   return { ...timing, period: latestDigestPeriod(timing, now) };
@@ -28,7 +31,9 @@ export function timingDueNow(timeZone: string, now: Date = new Date()): { digest
 export async function subscribe(
   project: Pick<TestProject, 'workspaceId' | 'projectId'>,
   email: string,
-  settings: Partial<Pick<Subscription, 'weeklyDigest' | 'failureAlerts' | 'digestDay' | 'digestHour' | 'timeZone'>> = {},
+  settings: Partial<
+    Pick<Subscription, 'weeklyDigest' | 'failureAlerts' | 'digestDay' | 'digestHour' | 'timeZone'>
+  > = {},
   userId: string | null = null,
 ): Promise<Subscription> {
   return upsertSubscription({
@@ -77,7 +82,11 @@ export function sleep(ms: number): Promise<void> {
 }
 
 /** Polls `check` until it returns a value other than undefined/false. */
-export async function waitUntil<T>(what: string, check: () => Promise<T | undefined | false>, timeoutMs = 45_000): Promise<T> {
+export async function waitUntil<T>(
+  what: string,
+  check: () => Promise<T | undefined | false>,
+  timeoutMs = 45_000,
+): Promise<T> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const value = await check();
@@ -117,8 +126,13 @@ export async function postBuild(
 ): Promise<Record<string, PostedRun>> {
   const out: Record<string, PostedRun> = {};
   for (const [name, file] of Object.entries(cases)) {
-    const res = await postRun(project.token, { build, case: name, branch: options.branch ?? 'main', commit: options.commit ?? `c-${build}` }, { path: file });
-    if (res.status !== 202) throw new Error(`posting ${build}/${name} answered ${res.status}: ${JSON.stringify(res.body)}`);
+    const res = await postRun(
+      project.token,
+      { build, case: name, branch: options.branch ?? 'main', commit: options.commit ?? `c-${build}` },
+      { path: file },
+    );
+    if (res.status !== 202)
+      throw new Error(`posting ${build}/${name} answered ${res.status}: ${JSON.stringify(res.body)}`);
     out[name] = { id: res.body.run.id as string, build, case: name };
   }
   for (const r of Object.values(out)) await waitForRun(project.token, r.id, 90_000);
@@ -139,13 +153,21 @@ export async function backdateBuild(project: Pick<TestProject, 'projectId'>, key
 
 /** A real worker process (scripts/worker.ts) in its own process group. */
 export function spawnWorker(extraEnv: Record<string, string> = {}): ChildProcess {
-  const logFile = path.join(required('VARIGATE_TEST_DATA_DIR'), 'logs', `notification-worker-${Date.now()}-${randomUUID().slice(0, 4)}.log`);
+  const logFile = path.join(
+    required('VARIGATE_TEST_DATA_DIR'),
+    'logs',
+    `notification-worker-${Date.now()}-${randomUUID().slice(0, 4)}.log`,
+  );
   const out = fs.openSync(logFile, 'a');
-  return spawn(path.join(process.cwd(), 'node_modules', '.bin', 'tsx'), ['--conditions=react-server', 'scripts/worker.ts'], {
-    env: { ...process.env, NODE_ENV: 'production', VARIGATE_PROCESS: 'test-worker', ...extraEnv },
-    stdio: ['ignore', out, out],
-    detached: true,
-  });
+  return spawn(
+    path.join(process.cwd(), 'node_modules', '.bin', 'tsx'),
+    ['--conditions=react-server', 'scripts/worker.ts'],
+    {
+      env: { ...process.env, NODE_ENV: 'production', VARIGATE_PROCESS: 'test-worker', ...extraEnv },
+      stdio: ['ignore', out, out],
+      detached: true,
+    },
+  );
 }
 
 export function signalGroup(pid: number, signal: NodeJS.Signals): void {

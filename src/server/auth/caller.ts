@@ -1,4 +1,5 @@
 import 'server-only';
+import { env } from '../env';
 import { AppError } from '../errors';
 import { getTokenOwnerByHash, touchToken } from '../queries/tokens';
 import { getSessionUser } from './session';
@@ -43,8 +44,26 @@ export async function requireCaller(request: Request): Promise<Caller> {
   const header = request.headers.get('authorization');
   if (header) return tokenCaller(header);
   const user = await getSessionUser();
-  if (user) return { kind: 'user', userId: user.id, email: user.email };
+  if (user) {
+    assertSameOrigin(request);
+    return { kind: 'user', userId: user.id, email: user.email };
+  }
   throw new AppError('unauthorized:token', 'Missing credentials: send `Authorization: Bearer <token>`, or sign in.');
+}
+
+/**
+ * A session cookie rides along with any request the browser makes, also one that another site
+ * triggers. SameSite=Lax stops most of those; for writes we also require the request to come from
+ * a page of this app (the Origin header browsers attach to every non-GET fetch and form post).
+ */
+function assertSameOrigin(request: Request): void {
+  if (request.method === 'GET' || request.method === 'HEAD') return;
+  const origin = request.headers.get('origin');
+  const own = new URL(request.url).origin;
+  const allowed = new Set([own, new URL(env().APP_URL).origin]);
+  if (!origin || !allowed.has(origin)) {
+    throw new AppError('forbidden:origin', 'Requests made with a session must come from the Varigate app itself.');
+  }
 }
 
 /** Routes that change who may do what (members, tokens, policies) are for people only. */

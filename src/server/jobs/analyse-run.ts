@@ -7,6 +7,7 @@ import { refreshBuildVerdict } from '../queries/builds';
 import { getBaseline } from '../queries/projects';
 import { getRunContext, getRunWorkspace, getUploadForRun, listRunVariables, markRunAnalysing, replaceRunResults, type AnalysisResultRows, type RunContext } from '../queries/runs';
 import { PermanentJobError, type JobRow } from '../queue';
+import { queueAlertsForFinishedRun } from '../services/alerts';
 import { analyseSnapshots, effectivePolicy, errorRows, fromVariableRow, isInputError, judgeToRows } from '../services/analysis';
 import { withStoredSnapshots } from '../services/snapshots';
 
@@ -66,5 +67,7 @@ export async function analyseRunJob(job: JobRow): Promise<void> {
   await transaction(async (tx) => {
     await replaceRunResults({ workspaceId, runId, result }, tx);
     await refreshBuildVerdict({ buildId: ctx.run.buildId }, tx);
+    // Failure alerts: a failing run on the default branch queues its build's alert job (services/alerts.ts).
+    await queueAlertsForFinishedRun({ runId, buildId: ctx.run.buildId, verdict: result.verdict, branch: ctx.branch, defaultBranch: ctx.defaultBranch }, tx);
   });
 }

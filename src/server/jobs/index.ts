@@ -2,6 +2,8 @@ import 'server-only';
 import type { JobHandler } from '../queue';
 import { analyseRunJob } from './analyse-run';
 import { ANALYSE_RUN_JOB } from './names';
+import { BUILD_ALERTS_JOB, DELIVER_MAIL_JOB, DIGEST_TICK_JOB, SEND_DIGEST_JOB } from './notification-names';
+import { buildAlertsJob, deliverMailJob, digestTickJob, sendDigestJob } from './notifications';
 
 /**
  * Every kind of background job and its handler. The worker process claims only these kinds.
@@ -10,4 +12,8 @@ import { ANALYSE_RUN_JOB } from './names';
  */
 export const jobHandlers: Record<string, JobHandler> = {
   [ANALYSE_RUN_JOB]: analyseRunJob,
+  [DIGEST_TICK_JOB]: digestTickJob,
+  [SEND_DIGEST_JOB]: sendDigestJob,
+  [BUILD_ALERTS_JOB]: buildAlertsJob,
+  [DELIVER_MAIL_JOB]: deliverMailJob,
 };

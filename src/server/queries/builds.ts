@@ -28,11 +28,21 @@ export async function ensureBuild(
 }
 
 /**
+ * Takes the build's row lock for the rest of the transaction. Two runs of one build finishing at
+ * the same moment would otherwise each count the other as still open; with the lock the second
+ * refresh waits for the first transaction to commit, and then sees its run.
+ */
+async function lockBuild({ buildId }: { buildId: string }, db: Executor): Promise<void> {
+  await db.execute(sql`select id from builds where id = ${buildId} for update`);
+}
+
+/**
  * Recomputes a build's verdict as its worst finished run (error > fail > warn > pass) and marks
  * it finished once no run is queued or being analysed. Called in the same transaction that
  * finishes a run, so the build never shows a verdict its runs do not support.
  */
 export async function refreshBuildVerdict({ buildId }: { buildId: string }, db: Executor = getDb()): Promise<void> {
+  await lockBuild({ buildId }, db);
   await db.execute(sql`
     update builds b set
       verdict = agg.worst,

@@ -63,8 +63,11 @@ export async function getMembershipBySlug({ userId, slug }: { userId: string; sl
   return rows[0];
 }
 
-export async function getMembershipById({ userId, workspaceId }: { userId: string; workspaceId: string }): Promise<WorkspaceMembership | undefined> {
-  const rows = await getDb()
+export async function getMembershipById(
+  { userId, workspaceId }: { userId: string; workspaceId: string },
+  db: Executor = getDb(),
+): Promise<WorkspaceMembership | undefined> {
+  const rows = await db
     .select({ workspaceId: workspaces.id, slug: workspaces.slug, name: workspaces.name, role: memberships.role })
     .from(memberships)
     .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))

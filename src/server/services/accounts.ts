@@ -10,6 +10,7 @@ import { insertAuditEvent } from '../queries/audit';
 import {
   consumeSignInToken,
   getLiveInvitationByHash,
+  getMembershipById,
   getUserByEmail,
   insertInvitation,
   insertSignInToken,
@@ -57,7 +58,7 @@ export async function requestPasswordReset(rawEmail: string): Promise<void> {
   await sendPasswordReset(email, secret);
 }
 
-/** Sets a new password from a reset link; the link is spent even when the password is refused later. */
+/** Sets a new password from a reset link. A refused password rolls back, so the link stays usable for a second try. */
 export async function resetPassword(secret: string, password: string): Promise<{ email: string }> {
   if (!LINK_SECRET_PATTERN.test(secret)) throw new AppError('invalid:link', 'This reset link is not valid.');
   return transaction(async (tx) => {
@@ -127,7 +128,10 @@ export async function acceptInvitation(
       'userId' in who
         ? who.userId
         : (await insertUser({ email: invitation.email, name: who.newAccount.name, passwordHash, emailVerified: true }, tx)).id;
-    await upsertMembership({ workspaceId: invitation.workspaceId, userId, role: invitation.role }, tx);
+    // Someone who joined meanwhile keeps the role they have: an old link never demotes anyone.
+    if (!(await getMembershipById({ userId, workspaceId: invitation.workspaceId }, tx))) {
+      await upsertMembership({ workspaceId: invitation.workspaceId, userId, role: invitation.role }, tx);
+    }
     await insertAuditEvent(
       { workspaceId: invitation.workspaceId, actorUserId: userId, action: 'member.join', targetType: 'user', targetId: userId, details: { role: invitation.role } },
       tx,
