@@ -1,7 +1,7 @@
 import 'server-only';
 import { env } from '../env';
 import { logger } from '../logger';
-import { insertDelivery, markDeliveryFailed, markDeliverySent } from '../queries/deliveries';
+import { insertDelivery, markDeliveryFailed, markDeliverySent } from '../queries/mail-deliveries';
 import { sendMail } from '../mail';
 
 /**

@@ -12,7 +12,7 @@ import {
   type NewlyFailingRun,
 } from '../queries/alerts';
 import { listWorstFindings } from '../queries/digests';
-import { listAlertedStreaks, lockSubscriptionAlerts } from '../queries/notification-deliveries';
+import { listAlertedStreaks, lockSubscriptionAlerts } from '../queries/mail-deliveries';
 import { listAlertSubscriptions } from '../queries/subscriptions';
 import { enqueue } from '../queue';
 import { renderAlertMail } from '../templates/alert-mail';

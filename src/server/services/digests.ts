@@ -21,7 +21,7 @@ import {
   listProjectBuildsBetween,
   listWorstFindings,
 } from '../queries/digests';
-import { getGlobalDeliveryByKey, hasDeliverySince } from '../queries/notification-deliveries';
+import { getGlobalDeliveryByKey, hasDeliverySince } from '../queries/mail-deliveries';
 import { getGlobalSubscription, listGlobalDigestTimings, type SubscriptionWithProject } from '../queries/subscriptions';
 import { enqueue } from '../queue';
 import { renderDigestMail } from '../templates/digest-mail';

@@ -13,7 +13,7 @@ import {
   recordDeliveryFailure,
   recordDeliverySent,
   type NotificationKind,
-} from '../queries/notification-deliveries';
+} from '../queries/mail-deliveries';
 import { getGlobalSubscription } from '../queries/subscriptions';
 import { enqueue, PermanentJobError } from '../queue';
 

@@ -15,7 +15,7 @@ import {
   upsertSubscription,
   type SubscriptionSettings,
 } from '../queries/subscriptions';
-import { listRecentDeliveries } from '../queries/notification-deliveries';
+import { listRecentDeliveries } from '../queries/mail-deliveries';
 import { insertAuditEvent } from '../queries/audit';
 import { queueDigestPreview } from './digests';
 

@@ -4,12 +4,17 @@ import { getDb, type Executor } from '@/db/client';
 import { mailDeliveries, type MailDelivery } from '@/db/schema';
 
 /**
- * The delivery log for notification mails (digests, alerts, previews). A row is claimed once per
+ * The delivery log of every mail the app sends (mail_deliveries).
+ *
+ * Notification mails (digests, alerts, previews): a row is claimed once per
  * dedupe key before anything is sent; the sender locks it while it talks to the SMTP server and
  * records the outcome (src/server/services/mail-delivery.ts). Rows without a workspace do not
  * occur here: every notification belongs to a project. The worker serves every workspace: the
  * `...Global...` functions find a row by its unique key, and `recordDelivery*` write to the row
  * the sender found and locked that way (by its id, inside the same transaction).
+ *
+ * Account mails (sign-in links, resets, invitations) are sent at once, since a person waits for
+ * them; their rows only record what happened (insertDelivery, markDeliverySent/Failed).
  */
 
 export type NotificationKind = 'digest' | 'alert' | 'preview';
@@ -155,4 +160,25 @@ export async function hasDeliverySince({
     )
     .limit(1);
   return rows.length > 0;
+}
+
+// ---------------------------------------------------------------- account mails, sent at once
+
+type DeliveryKind = (typeof mailDeliveries.$inferInsert)['kind'];
+
+export async function insertDelivery(input: { workspaceId?: string | null; kind: DeliveryKind; recipient: string; subject: string; dedupeKey?: string | null; payload?: Record<string, unknown> }): Promise<number | undefined> {
+  const rows = await getDb()
+    .insert(mailDeliveries)
+    .values({ ...input, workspaceId: input.workspaceId ?? null, dedupeKey: input.dedupeKey ?? null, payload: input.payload ?? {} })
+    .onConflictDoNothing({ target: mailDeliveries.dedupeKey })
+    .returning({ id: mailDeliveries.id });
+  return rows[0]?.id;
+}
+
+export async function markDeliverySent({ id, messageId }: { id: number; messageId: string }): Promise<void> {
+  await getDb().update(mailDeliveries).set({ status: 'sent', messageId, sentAt: new Date() }).where(eq(mailDeliveries.id, id));
+}
+
+export async function markDeliveryFailed({ id, error, attempts }: { id: number; error: string; attempts: number }): Promise<void> {
+  await getDb().update(mailDeliveries).set({ status: 'failed', lastError: error.slice(0, 2000), attempts }).where(eq(mailDeliveries.id, id));
 }
