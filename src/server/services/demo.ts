@@ -14,6 +14,7 @@ import { ANALYSE_RUN_JOB } from '../jobs/names';
 import { hashPassword } from '../auth/password';
 import type { Role } from '../auth/roles';
 import { ensureProject, ensureWorkspace } from '../queries/projects';
+import { ensureSubscription } from '../queries/subscriptions';
 import { getUserByEmail, insertUser, upsertMembership } from '../queries/users';
 import { runUntilIdle } from '../queue';
 import { acceptBaseline } from './baselines';
@@ -175,6 +176,28 @@ async function seedDemoAccounts(workspaceId: string): Promise<string[]> {
   return lines;
 }
 
+/**
+ * The lead reads the weekly digest (Monday 08:00, in an invented coastal town's time zone); the
+ * maintainer also wants an alert as soon as a case starts failing.
+ */
+async function subscribeDemoPeople(workspaceId: string, projectId: string): Promise<void> {
+  const wanted = [
+    { email: 'admin@brackwater.example', failureAlerts: false },
+    { email: 'maintainer@brackwater.example', failureAlerts: true },
+  ];
+  for (const w of wanted) {
+    const user = await getUserByEmail({ email: w.email });
+    if (!user) continue;
+    await ensureSubscription({
+      workspaceId,
+      projectId,
+      userId: user.id,
+      email: user.email,
+      settings: { weeklyDigest: true, failureAlerts: w.failureAlerts, digestDay: 1, digestHour: 8, timeZone: 'Europe/Lisbon' },
+    });
+  }
+}
+
 /** Secrets made for the demo are appended to the notes file, which `npm start` prints. */
 async function keepNotes(file: string | undefined, lines: string[]): Promise<void> {
   if (file && lines.length > 0) await appendFile(file, `${lines.join('\n')}\n`, { mode: 0o600 });
@@ -195,6 +218,7 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
   try {
     for (const p of demoProjects) {
       const project = await ensureProject({ workspaceId: ws.id, slug: p.slug, name: p.name });
+      await subscribeDemoPeople(ws.id, project.id);
       const token = await issueToken({ workspaceId: ws.id, projectId: project.id, name: 'demo CI' });
       notes.push(`CI token for project ${p.slug}: ${token.token}`);
       const caller: TokenCaller = { kind: 'token', tokenId: token.id, workspaceId: ws.id, projectId: project.id, projectSlug: p.slug };
