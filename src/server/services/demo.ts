@@ -177,7 +177,7 @@ async function seedDemoAccounts(workspaceId: string): Promise<string[]> {
 }
 
 /**
- * The lead reads the weekly digest (Monday 08:00, in an invented coastal town's time zone); the
+ * The lead reads the weekly digest (Monday 08:00 in the team's time zone); the
  * maintainer also wants an alert as soon as a case starts failing.
  */
 async function subscribeDemoPeople(workspaceId: string, projectId: string): Promise<void> {
