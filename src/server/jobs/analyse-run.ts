@@ -1,35 +1,31 @@
 import 'server-only';
 import { z } from 'zod';
 import { transaction } from '@/db/client';
-import type { Policy, VariableSummary } from '@/src/analysis';
+import type { Policy } from '@/src/analysis';
 import { logger } from '../logger';
 import { refreshBuildVerdict } from '../queries/builds';
-import { getBaseline } from '../queries/projects';
-import { getRunContext, getRunWorkspace, getUploadForRun, listRunVariables, markRunAnalysing, replaceRunResults, type AnalysisResultRows, type RunContext } from '../queries/runs';
+import { getRunContext, getRunWorkspace, getUploadForRun, markRunAnalysing, replaceRunResults, type AnalysisResultRows, type RunContext } from '../queries/runs';
 import { PermanentJobError, type JobRow } from '../queue';
 import { queueAlertsForFinishedRun } from '../services/alerts';
-import { analyseSnapshots, effectivePolicy, errorRows, fromVariableRow, isInputError, judgeToRows } from '../services/analysis';
+import { analyseSnapshots, effectivePolicy, errorRows, isInputError, judgeToRows, loadBaselineSummaries } from '../services/analysis';
 import { withStoredSnapshots } from '../services/snapshots';
 
 const payloadSchema = z.object({ runId: z.uuid() });
 
-/** The accepted run of the case on this branch, else on the project's default branch. */
-async function baselineSummaries(ctx: RunContext): Promise<VariableSummary[] | null> {
-  const workspaceId = ctx.run.workspaceId;
-  const baseline =
-    (await getBaseline({ workspaceId, caseId: ctx.run.caseId, branch: ctx.branch })) ??
-    (await getBaseline({ workspaceId, caseId: ctx.run.caseId, branch: ctx.defaultBranch }));
-  if (!baseline || baseline.runId === ctx.run.id) return null;
-  const rows = await listRunVariables({ workspaceId, runId: baseline.runId });
-  return rows.length > 0 ? rows.map(fromVariableRow) : null;
-}
 
 async function analyse(ctx: RunContext, policy: Policy): Promise<AnalysisResultRows> {
   const upload = await getUploadForRun({ workspaceId: ctx.run.workspaceId, runId: ctx.run.id });
   if (!upload) return errorRows('The run has no stored file.', policy);
   const stepDelayMs = Number(process.env.VARIGATE_ANALYSIS_STEP_DELAY_MS ?? 0) || undefined;
   const summaries = await withStoredSnapshots(upload, ctx.run.manifest, (reader) => analyseSnapshots(reader, { policy, stepDelayMs }));
-  return judgeToRows(summaries, policy, await baselineSummaries(ctx));
+  const baseline = await loadBaselineSummaries({
+    workspaceId: ctx.run.workspaceId,
+    caseId: ctx.run.caseId,
+    runId: ctx.run.id,
+    branch: ctx.branch,
+    defaultBranch: ctx.defaultBranch,
+  });
+  return judgeToRows(summaries, policy, baseline?.summaries ?? null);
 }
 
 /**

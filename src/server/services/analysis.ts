@@ -6,7 +6,8 @@ import type { Precision } from '@/src/analysis/types';
 import { isReadError, type SnapshotReader } from '@/src/ingest';
 import { mergeDeep } from '@/src/lib/merge';
 import type { Variable } from '@/db/schema';
-import type { AnalysisResultRows } from '../queries/runs';
+import { getBaseline } from '../queries/projects';
+import { listRunVariables, type AnalysisResultRows } from '../queries/runs';
 
 /**
  * Turning a snapshot file into stored results: every variable of the file through its own
@@ -110,4 +111,24 @@ export function judgeToRows(summaries: VariableSummary[], policy: Policy, baseli
 
 export function errorRows(message: string, policy: unknown): AnalysisResultRows {
   return { variables: [], findings: [], verdict: 'error', policy, errorMessage: message };
+}
+
+/**
+ * The accepted run's summaries for a run on `branch`: the case's baseline on that branch, else on
+ * the project's default branch; none when the run is itself the baseline or has no metrics.
+ */
+export async function loadBaselineSummaries(input: {
+  workspaceId: string;
+  caseId: string;
+  runId: string;
+  branch: string;
+  defaultBranch: string;
+}): Promise<{ runId: string; summaries: VariableSummary[] } | null> {
+  const { workspaceId, caseId } = input;
+  const baseline =
+    (await getBaseline({ workspaceId, caseId, branch: input.branch })) ??
+    (await getBaseline({ workspaceId, caseId, branch: input.defaultBranch }));
+  if (!baseline || baseline.runId === input.runId) return null;
+  const rows = await listRunVariables({ workspaceId, runId: baseline.runId });
+  return rows.length > 0 ? { runId: baseline.runId, summaries: rows.map(fromVariableRow) } : null;
 }

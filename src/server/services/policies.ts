@@ -2,7 +2,7 @@ import 'server-only';
 import { notFound } from 'next/navigation';
 import { transaction } from '@/db/client';
 import type { Case, Project } from '@/db/schema';
-import type { Policy, SummaryMetrics, VariableSummary, Verdict } from '@/src/analysis';
+import type { Policy, SummaryMetrics, Verdict } from '@/src/analysis';
 import { validatePolicyForm, type PolicyFormValues } from '@/src/schemas/policy-form';
 import type { MemberContext } from '../auth/session';
 import { roleAtLeast } from '../auth/roles';
@@ -21,9 +21,9 @@ import {
   type CaseRunRow,
 } from '../queries/cases';
 import { listWorstFindings } from '../queries/digests';
-import { getBaseline, getCaseByName, getProjectBySlug, listProjects } from '../queries/projects';
+import { getCaseByName, getProjectBySlug, listProjects } from '../queries/projects';
 import { getRunContext, listRunVariables, replaceRunResults, type AnalysisResultRows } from '../queries/runs';
-import { fromVariableRow, judgeToRows } from './analysis';
+import { fromVariableRow, judgeToRows, loadBaselineSummaries } from './analysis';
 import { acceptBaseline } from './baselines';
 
 /**
@@ -105,17 +105,6 @@ export async function getCasePage(ctx: MemberContext, projectSlug: string, caseN
 // ---------------------------------------------------------------------------------------------
 // Re-judging from stored summaries
 
-/**
- * The accepted run's summaries for a run on `branch`: the case's baseline on that branch, else
- * on the project's default branch; none when the run is itself the baseline. Same rule as the
- * analysis job, so a preview and a re-judge agree with what the worker would decide.
- */
-async function baselineSummaries(workspaceId: string, caseId: string, runId: string, branch: string, defaultBranch: string): Promise<{ runId: string; summaries: VariableSummary[] } | null> {
-  const baseline = (await getBaseline({ workspaceId, caseId, branch })) ?? (await getBaseline({ workspaceId, caseId, branch: defaultBranch }));
-  if (!baseline || baseline.runId === runId) return null;
-  const rows = await listRunVariables({ workspaceId, runId: baseline.runId });
-  return rows.length > 0 ? { runId: baseline.runId, summaries: rows.map(fromVariableRow) } : null;
-}
 
 interface Rejudged {
   rows: AnalysisResultRows;
@@ -126,7 +115,7 @@ interface Rejudged {
 async function judgeStoredRun(workspaceId: string, project: Project, kase: Case, run: CaseRunRow, policy: Policy): Promise<Rejudged> {
   const stored = await listRunVariables({ workspaceId, runId: run.runId });
   if (stored.length === 0) throw new AppError('conflict:run', 'The latest run has no stored analysis to re-judge; analyse it again first.');
-  const baseline = await baselineSummaries(workspaceId, kase.id, run.runId, run.branch, project.defaultBranch);
+  const baseline = await loadBaselineSummaries({ workspaceId, caseId: kase.id, runId: run.runId, branch: run.branch, defaultBranch: project.defaultBranch });
   return { rows: judgeToRows(stored.map(fromVariableRow), policy, baseline?.summaries ?? null), baselineRunId: baseline?.runId ?? null };
 }
 
