@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import type { ReactNode } from 'react';
-import { themeScript } from '@/src/components/shell/theme-toggle';
+import { ThemeSync, themeScript } from '@/src/components/shell/theme-toggle';
 import { mono, sans } from './fonts';
 import './globals.css';
 
@@ -15,7 +15,10 @@ export default function RootLayout({ children }: { children: ReactNode }) {
       <head>
         <script dangerouslySetInnerHTML={{ __html: themeScript }} />
       </head>
-      <body className="min-h-screen font-sans">{children}</body>
+      <body className="min-h-screen font-sans">
+        <ThemeSync />
+        {children}
+      </body>
     </html>
   );
 }

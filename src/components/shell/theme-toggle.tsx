@@ -1,6 +1,6 @@
 'use client';
 
-import { useSyncExternalStore } from 'react';
+import { useEffect, useSyncExternalStore } from 'react';
 
 type Theme = 'light' | 'dark';
 
@@ -33,3 +33,20 @@ export function ThemeToggle() {
 
 /** Applied before the first paint, so a dark-theme user never sees a white flash. */
 export const themeScript = `try{var t=localStorage.getItem('varigate-theme');if(t==='dark'||(!t&&matchMedia('(prefers-color-scheme: dark)').matches))document.documentElement.classList.add('dark')}catch(e){}`;
+
+function wantsDark(): boolean {
+  const stored = localStorage.getItem('varigate-theme');
+  return stored === 'dark' || (!stored && matchMedia('(prefers-color-scheme: dark)').matches);
+}
+
+/**
+ * Re-applies the theme once React has taken over the page. If React ever renders <html> afresh
+ * (it does after a hydration mismatch anywhere on the page), the class the early script set is
+ * gone; this puts it back.
+ */
+export function ThemeSync() {
+  useEffect(() => {
+    document.documentElement.classList.toggle('dark', wantsDark());
+  }, []);
+  return null;
+}
