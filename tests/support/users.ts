@@ -57,4 +57,7 @@ export async function signInPage(page: Page, user: { email: string; password: st
   await form.getByLabel('E-mail').fill(user.email);
   await form.getByLabel('Password').fill(user.password);
   await Promise.all([page.waitForURL((url) => !url.pathname.startsWith('/sign-in')), form.getByRole('button', { name: 'Sign in' }).click()]);
+  // The landing page redirects once more (to the first workspace) in the browser; a test that
+  // opens another page while that is under way races the router, so let it settle first.
+  await page.waitForLoadState('networkidle');
 }
