@@ -1,14 +1,10 @@
 import Link from 'next/link';
+import { CiLink } from '@/src/components/ui/ci-link';
 import { VerdictBadge } from '@/src/components/ui/verdict-badge';
 import { formatDateTime, shortCommit } from '@/src/lib/format';
 import type { RunPageData } from '@/src/lib/run-views';
 
 export type RunHeaderProps = { data: RunPageData };
-
-/** Only links a person can follow: a CI link that is not http(s) is shown as text. */
-function safeHttpUrl(url: string | null): string | null {
-  return url && /^https?:\/\//i.test(url) ? url : null;
-}
 
 const statusText: Record<string, string> = {
   queued: 'queued',
@@ -22,7 +18,6 @@ export function RunHeader({ data }: RunHeaderProps) {
   const { run, build, project } = data;
   const projectHref = `/w/${data.workspace}/projects/${encodeURIComponent(project.slug)}`;
   const buildHref = `${projectHref}/builds/${encodeURIComponent(build.key)}`;
-  const ciUrl = safeHttpUrl(build.ciUrl);
   const finished = run.finishedAt ? ` · finished ${formatDateTime(new Date(run.finishedAt))}` : '';
   return (
     <div>
@@ -50,20 +45,7 @@ export function RunHeader({ data }: RunHeaderProps) {
         {project.name} · branch <span className="font-mono">{build.branch}</span> · commit{' '}
         <span className="font-mono">{shortCommit(build.commit)}</span> · {statusText[run.status] ?? run.status}
         {finished}
-        {ciUrl ? (
-          <>
-            {' '}
-            ·{' '}
-            <a
-              href={ciUrl}
-              className="text-sky-700 hover:underline dark:text-sky-400"
-              rel="noopener noreferrer"
-              target="_blank"
-            >
-              CI build page
-            </a>
-          </>
-        ) : null}
+        <CiLink url={build.ciUrl} />
       </p>
     </div>
   );

@@ -1,54 +1,21 @@
 import 'server-only';
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { getDb } from '@/db/client';
-import { baselines, builds, cases, projects, runs, variables, type Run } from '@/db/schema';
+import { baselines, builds, runs, variables } from '@/db/schema';
+import { getRunContext, type RunContext } from './runs';
 
 /**
  * Reads for the run page and its chart routes. Every function takes the workspace to scope by:
  * a run id of another workspace finds nothing, exactly like an id that does not exist.
  */
 
-export interface RunPageRow {
-  run: Run;
-  caseId: string;
-  caseName: string;
-  projectSlug: string;
-  projectName: string;
-  defaultBranch: string;
-  buildKey: string;
-  commit: string;
-  branch: string;
-  ciUrl: string | null;
-}
+/** A run with its case, project and build (the run context, with the case id at hand). */
+export type RunPageRow = RunContext & { caseId: string };
 
 /** A run with its case, project and build, scoped to a workspace. */
-export async function getRunPageRow({
-  workspaceId,
-  id,
-}: {
-  workspaceId: string;
-  id: string;
-}): Promise<RunPageRow | undefined> {
-  const rows = await getDb()
-    .select({
-      run: runs,
-      caseId: cases.id,
-      caseName: cases.name,
-      projectSlug: projects.slug,
-      projectName: projects.name,
-      defaultBranch: projects.defaultBranch,
-      buildKey: builds.key,
-      commit: builds.commit,
-      branch: builds.branch,
-      ciUrl: builds.ciUrl,
-    })
-    .from(runs)
-    .innerJoin(cases, eq(cases.id, runs.caseId))
-    .innerJoin(projects, eq(projects.id, runs.projectId))
-    .innerJoin(builds, eq(builds.id, runs.buildId))
-    .where(and(eq(runs.workspaceId, workspaceId), eq(runs.id, id)))
-    .limit(1);
-  return rows[0];
+export async function getRunPageRow({ workspaceId, id }: { workspaceId: string; id: string }): Promise<RunPageRow | undefined> {
+  const ctx = await getRunContext({ workspaceId, id });
+  return ctx ? { ...ctx, caseId: ctx.run.caseId } : undefined;
 }
 
 export interface VariableOutline {

@@ -59,11 +59,13 @@ export interface RunContext {
   caseName: string;
   casePolicy: unknown;
   projectSlug: string;
+  projectName: string;
   projectPolicy: unknown;
   defaultBranch: string;
   buildKey: string;
   branch: string;
   commit: string;
+  ciUrl: string | null;
 }
 
 /** A run with the names and policies around it, scoped to a workspace. */
@@ -74,11 +76,13 @@ export async function getRunContext({ workspaceId, id }: { workspaceId: string; 
       caseName: cases.name,
       casePolicy: cases.policy,
       projectSlug: projects.slug,
+      projectName: projects.name,
       projectPolicy: projects.defaultPolicy,
       defaultBranch: projects.defaultBranch,
       buildKey: builds.key,
       branch: builds.branch,
       commit: builds.commit,
+      ciUrl: builds.ciUrl,
     })
     .from(runs)
     .innerJoin(cases, eq(cases.id, runs.caseId))

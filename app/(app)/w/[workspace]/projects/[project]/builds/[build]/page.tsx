@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
 import { Card } from '@/src/components/ui/card';
+import { CiLink } from '@/src/components/ui/ci-link';
 import { VerdictBadge } from '@/src/components/ui/verdict-badge';
 import { formatDateTime, shortCommit } from '@/src/lib/format';
 import { requireMember } from '@/src/server/auth/session';
@@ -10,18 +11,12 @@ import { getBuildView } from '@/src/server/services/views';
 export const metadata: Metadata = { title: 'Build' };
 export const dynamic = 'force-dynamic';
 
-/** Only links a person can follow: a CI link that is not http(s) is shown as text. */
-function safeHttpUrl(url: string | null): string | null {
-  return url && /^https?:\/\//i.test(url) ? url : null;
-}
-
 export default async function BuildPage({ params }: { params: Promise<{ workspace: string; project: string; build: string }> }) {
   const { workspace, project: slug, build: rawKey } = await params;
   const ctx = await requireMember(workspace);
   const view = await getBuildView(ctx, slug, decodeURIComponent(rawKey));
   const { build } = view;
   const projectBase = `/w/${workspace}/projects/${slug}`;
-  const ciUrl = safeHttpUrl(build.ciUrl);
   const open = view.cases.some((c) => c.status === 'queued' || c.status === 'analysing');
   const failing = view.cases.filter((c) => c.verdict === 'fail' || c.verdict === 'error').length;
   const findings = view.cases.reduce((acc, c) => ({ fail: acc.fail + c.failFindings, warn: acc.warn + c.warnFindings }), { fail: 0, warn: 0 });
@@ -38,15 +33,7 @@ export default async function BuildPage({ params }: { params: Promise<{ workspac
         </h1>
         <p className="mt-1 text-sm text-slate-500">
           {build.branch} · <span className="font-mono">{shortCommit(build.commit)}</span> · started {formatDateTime(build.startedAt)}
-          {ciUrl ? (
-            <>
-              {' '}
-              ·{' '}
-              <a href={ciUrl} className="text-sky-700 hover:underline dark:text-sky-400" rel="noopener noreferrer" target="_blank">
-                CI build page
-              </a>
-            </>
-          ) : null}
+          <CiLink url={build.ciUrl} />
         </p>
       </div>
 
