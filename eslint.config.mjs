@@ -6,7 +6,15 @@ import drizzle from 'eslint-plugin-drizzle';
 export default defineConfig([
   ...nextVitals,
   ...nextTs,
-  globalIgnores(['.next/**', '.next-test*/**', '.data/**', 'node_modules/**', 'next-env.d.ts', 'migrations/**', 'fixtures/**']),
+  globalIgnores([
+    '.next/**',
+    '.next-test*/**',
+    '.data/**',
+    'node_modules/**',
+    'next-env.d.ts',
+    'migrations/**',
+    'fixtures/**',
+  ]),
   {
     // A delete or update without `where` on a drizzle table is almost always a bug.
     plugins: { drizzle },
@@ -24,7 +32,10 @@ export default defineConfig([
         'error',
         {
           patterns: [
-            { group: ['next', 'next/*', 'react', 'react-dom', '@/db/*', '@/src/server/*', 'node:*', 'fs', 'postgres'], message: 'src/analysis is pure: no I/O, no framework.' },
+            {
+              group: ['next', 'next/*', 'react', 'react-dom', '@/db/*', '@/src/server/*', 'node:*', 'fs', 'postgres'],
+              message: 'src/analysis is pure: no I/O, no framework.',
+            },
           ],
         },
       ],
@@ -33,7 +44,17 @@ export default defineConfig([
   {
     files: ['app/**/*.{ts,tsx}'],
     rules: {
-      'no-restricted-imports': ['error', { patterns: [{ group: ['@/db/*', 'drizzle-orm', 'drizzle-orm/*'], message: 'app/ goes through services in src/server; no SQL here.' }] }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: ['@/db/*', 'drizzle-orm', 'drizzle-orm/*'],
+              message: 'app/ goes through services in src/server; no SQL here.',
+            },
+          ],
+        },
+      ],
     },
   },
   {

@@ -27,19 +27,28 @@ export default async function HomePage() {
         </p>
       ) : (
         <p className="mt-6">
-          <Link href="/sign-in" className="inline-block rounded-md bg-slate-900 px-4 py-2 text-sm font-medium text-white dark:bg-slate-100 dark:text-slate-900">
+          <Link
+            href="/sign-in"
+            className="inline-block rounded-md bg-slate-900 px-4 py-2 text-sm font-medium text-white dark:bg-slate-100 dark:text-slate-900"
+          >
             Sign in
           </Link>
         </p>
       )}
-      <section aria-labelledby="services-heading" className="mt-10 rounded-lg border border-slate-200 p-5 dark:border-slate-800">
+      <section
+        aria-labelledby="services-heading"
+        className="mt-10 rounded-lg border border-slate-200 p-5 dark:border-slate-800"
+      >
         <h2 id="services-heading" className="text-sm font-medium uppercase tracking-wide text-slate-500">
           Services
         </h2>
         <ul className="mt-3 space-y-1" data-testid="service-list">
           {Object.entries(health.services).map(([name, state]) => (
             <li key={name} className="flex items-center gap-2">
-              <span aria-hidden className={`inline-block h-2 w-2 rounded-full ${state.ok ? 'bg-verdict-pass' : 'bg-verdict-fail'}`} />
+              <span
+                aria-hidden
+                className={`inline-block h-2 w-2 rounded-full ${state.ok ? 'bg-verdict-pass' : 'bg-verdict-fail'}`}
+              />
               <span className="font-mono text-sm">{name}</span>
               <span className="text-sm text-slate-500">{state.ok ? 'up' : 'down'}</span>
             </li>

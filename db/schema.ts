@@ -387,7 +387,10 @@ export const signInAttempts = pgTable(
     succeeded: boolean('succeeded').notNull(),
     createdAt: createdAt(),
   },
-  (t) => [index('sign_in_attempts_email_idx').on(t.email, t.createdAt), index('sign_in_attempts_ip_idx').on(t.ip, t.createdAt)],
+  (t) => [
+    index('sign_in_attempts_email_idx').on(t.email, t.createdAt),
+    index('sign_in_attempts_ip_idx').on(t.ip, t.createdAt),
+  ],
 );
 
 /**
@@ -404,7 +407,9 @@ export const mailDeliveries = pgTable(
     recipient: text('recipient').notNull(),
     subject: text('subject').notNull(),
     dedupeKey: text('dedupe_key').unique(),
-    status: text('status', { enum: ['queued', 'sent', 'failed'] }).notNull().default('queued'),
+    status: text('status', { enum: ['queued', 'sent', 'failed'] })
+      .notNull()
+      .default('queued'),
     attempts: integer('attempts').notNull().default(0),
     lastError: text('last_error'),
     messageId: text('message_id'),

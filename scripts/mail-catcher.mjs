@@ -37,13 +37,23 @@ async function store(raw) {
     id,
     receivedAt: new Date().toISOString(),
     from: parsed.from?.text ?? '',
-    to: parsed.to ? [parsed.to].flat().map((a) => a.text).join(', ') : '',
+    to: parsed.to
+      ? [parsed.to]
+          .flat()
+          .map((a) => a.text)
+          .join(', ')
+      : '',
     subject: parsed.subject ?? '',
     date: parsed.date?.toISOString() ?? null,
     text: parsed.text ?? '',
     html: typeof parsed.html === 'string' ? parsed.html : '',
     headers,
-    attachments: parsed.attachments.map((a) => ({ filename: a.filename, contentType: a.contentType, size: a.size, cid: a.cid })),
+    attachments: parsed.attachments.map((a) => ({
+      filename: a.filename,
+      contentType: a.contentType,
+      size: a.size,
+      cid: a.cid,
+    })),
   };
   fs.writeFileSync(path.join(dir, `${id}.eml`), raw);
   fs.writeFileSync(path.join(dir, `${id}.json`), JSON.stringify(record));
@@ -65,7 +75,10 @@ const smtp = new SMTPServer({
     const chunks = [];
     stream.on('data', (c) => chunks.push(c));
     stream.on('end', () => {
-      store(Buffer.concat(chunks)).then(() => callback(), (err) => callback(err));
+      store(Buffer.concat(chunks)).then(
+        () => callback(),
+        (err) => callback(err),
+      );
     });
   },
 });
@@ -100,7 +113,9 @@ const api = http.createServer((req, res) => {
 
 smtp.listen(Number(values['smtp-port']), '127.0.0.1', () => {
   api.listen(Number(values['http-port']), '127.0.0.1', () => {
-    console.log(`mail catcher: smtp 127.0.0.1:${values['smtp-port']}, http 127.0.0.1:${values['http-port']}, folder ${dir}`);
+    console.log(
+      `mail catcher: smtp 127.0.0.1:${values['smtp-port']}, http 127.0.0.1:${values['http-port']}, folder ${dir}`,
+    );
   });
 });
 

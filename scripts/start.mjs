@@ -7,7 +7,17 @@
  */
 import path from 'node:path';
 import fs from 'node:fs';
-import { Children, bin, checkNode, ensureDependencies, localAuthSecret, root, run, say, waitForHttp } from './lib/setup.mjs';
+import {
+  Children,
+  bin,
+  checkNode,
+  ensureDependencies,
+  localAuthSecret,
+  root,
+  run,
+  say,
+  waitForHttp,
+} from './lib/setup.mjs';
 import { devPorts } from './lib/dev-config.mjs';
 
 const dev = process.argv.includes('--dev');
@@ -57,7 +67,10 @@ async function main() {
   const logDir = path.join(dataDir, 'logs');
   fs.mkdirSync(logDir, { recursive: true });
   children.spawn('web', bin('next'), [dev ? 'dev' : 'start', '-p', String(devPorts.app), '-H', '127.0.0.1'], env);
-  children.spawn('worker', bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], { ...env, VARIGATE_PROCESS: 'worker' });
+  children.spawn('worker', bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], {
+    ...env,
+    VARIGATE_PROCESS: 'worker',
+  });
   await waitForHttp(`http://127.0.0.1:${devPorts.app}/api/health`);
   const demo = path.join(dataDir, 'demo-accounts.txt');
   say(

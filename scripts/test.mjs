@@ -10,7 +10,17 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { Children, bin, checkNode, ensureChromium, ensureDependencies, root, run, say, waitForHttp } from './lib/setup.mjs';
+import {
+  Children,
+  bin,
+  checkNode,
+  ensureChromium,
+  ensureDependencies,
+  root,
+  run,
+  say,
+  waitForHttp,
+} from './lib/setup.mjs';
 
 const ownFlags = ['--skip-build', '--skip-checks'];
 const skipBuild = process.argv.includes('--skip-build');
@@ -51,7 +61,12 @@ async function main() {
 
   tmpDir = fs.mkdtempSync(path.join(os.tmpdir(), 'varigate-test-'));
   fs.chmodSync(tmpDir, 0o755); // the postgres system user must reach the cluster folder
-  const ports = { postgres: await freePort(), s3: await freePort(), smtp: await freePort(), mailHttp: await freePort() };
+  const ports = {
+    postgres: await freePort(),
+    s3: await freePort(),
+    smtp: await freePort(),
+    mailHttp: await freePort(),
+  };
   const appPort = await freePort();
   say(`throwaway services in ${tmpDir}`);
   const services = await startAll({ dataDir: tmpDir, ports, fast: true });
@@ -76,6 +91,7 @@ async function main() {
   if (!skipChecks) {
     say('lint');
     run(bin('eslint'), ['.', '--max-warnings=0'], env);
+    run(bin('prettier'), ['--check', '--log-level=warn', '.'], env);
     say('typecheck');
     run(bin('tsc'), ['--noEmit'], env);
   }
@@ -87,12 +103,24 @@ async function main() {
   }
   const logDir = path.join(tmpDir, 'logs');
   fs.mkdirSync(logDir, { recursive: true });
-  children.spawn('web', bin('next'), ['start', '-p', String(appPort), '-H', '127.0.0.1'], { ...env, NODE_ENV: 'production' }, {
-    logFile: path.join(logDir, 'web.log'),
-  });
-  const worker = children.spawn('worker', bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], { ...env, NODE_ENV: 'production', VARIGATE_PROCESS: 'worker' }, {
-    logFile: path.join(logDir, 'worker.log'),
-  });
+  children.spawn(
+    'web',
+    bin('next'),
+    ['start', '-p', String(appPort), '-H', '127.0.0.1'],
+    { ...env, NODE_ENV: 'production' },
+    {
+      logFile: path.join(logDir, 'web.log'),
+    },
+  );
+  const worker = children.spawn(
+    'worker',
+    bin('tsx'),
+    ['--conditions=react-server', 'scripts/worker.ts'],
+    { ...env, NODE_ENV: 'production', VARIGATE_PROCESS: 'worker' },
+    {
+      logFile: path.join(logDir, 'worker.log'),
+    },
+  );
   // The worker-failure test pauses this worker while it kills workers of its own.
   const workerPidFile = path.join(tmpDir, 'run', 'worker.pid');
   fs.mkdirSync(path.dirname(workerPidFile), { recursive: true });
@@ -112,7 +140,8 @@ async function main() {
   if (status !== 0) {
     for (const f of ['web.log', 'worker.log']) {
       const file = path.join(logDir, f);
-      if (fs.existsSync(file)) process.stdout.write(`\n--- last lines of ${f} ---\n${fs.readFileSync(file, 'utf8').slice(-4000)}\n`);
+      if (fs.existsSync(file))
+        process.stdout.write(`\n--- last lines of ${f} ---\n${fs.readFileSync(file, 'utf8').slice(-4000)}\n`);
     }
   }
   return status;

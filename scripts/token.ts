@@ -15,8 +15,14 @@ async function main(): Promise<number> {
     return 3;
   }
   const project = await findProjectForCli({ projectSlug: values.project, workspaceSlug: values.workspace });
-  const issued = await issueToken({ workspaceId: project.workspaceId, projectId: project.projectId, name: values.name });
-  console.log(`Token "${issued.name}" for project ${values.project} (shown once, store it as a CI secret):\n${issued.token}`);
+  const issued = await issueToken({
+    workspaceId: project.workspaceId,
+    projectId: project.projectId,
+    name: values.name,
+  });
+  console.log(
+    `Token "${issued.name}" for project ${values.project} (shown once, store it as a CI secret):\n${issued.token}`,
+  );
   return 0;
 }
 

@@ -121,14 +121,16 @@ function parseBaseUrl(raw) {
   } catch {
     throw new UsageError(`--url: "${raw}" is not a URL.`);
   }
-  if (url.protocol !== 'http:' && url.protocol !== 'https:') throw new UsageError(`--url: use http or https, not ${url.protocol}`);
+  if (url.protocol !== 'http:' && url.protocol !== 'https:')
+    throw new UsageError(`--url: use http or https, not ${url.protocol}`);
   // Keep a path prefix: Varigate may live under one behind a proxy.
   return url.href.replace(/\/+$/, '');
 }
 
 function parsePositiveSeconds(raw, flag) {
   const seconds = Number(raw);
-  if (!Number.isFinite(seconds) || seconds <= 0) throw new UsageError(`${flag}: "${raw}" is not a positive number of seconds.`);
+  if (!Number.isFinite(seconds) || seconds <= 0)
+    throw new UsageError(`${flag}: "${raw}" is not a positive number of seconds.`);
   return seconds;
 }
 
@@ -162,7 +164,9 @@ function parseCases(values) {
     const name = spec.slice(0, eq).trim();
     const file = spec.slice(eq + 1);
     if (!CASE_NAME.test(name)) {
-      throw new UsageError(`--case "${name}": use letters, digits, dot, dash or underscore (at most 100), starting with a letter or digit.`);
+      throw new UsageError(
+        `--case "${name}": use letters, digits, dot, dash or underscore (at most 100), starting with a letter or digit.`,
+      );
     }
     if (seen.has(name)) throw new UsageError(`--case "${name}" is given twice.`);
     seen.add(name);
@@ -255,7 +259,9 @@ function makeProgress(log, label, total) {
     const tenths = total === 0 ? 10 : Math.floor((sent * 10) / total);
     if (tenths < nextTenth) return;
     nextTenth = tenths + 1;
-    log.info(`${label}: ${formatBytes(sent)} / ${formatBytes(total)} (${Math.round((sent * 100) / Math.max(total, 1))}%)`);
+    log.info(
+      `${label}: ${formatBytes(sent)} / ${formatBytes(total)} (${Math.round((sent * 100) / Math.max(total, 1))}%)`,
+    );
   };
 }
 
@@ -283,7 +289,8 @@ async function describeErrorResponse(response) {
   const text = await response.text().catch(() => '');
   try {
     const body = JSON.parse(text);
-    if (body?.error?.message) return { code: body.error.code ?? `http:${response.status}`, message: body.error.message };
+    if (body?.error?.message)
+      return { code: body.error.code ?? `http:${response.status}`, message: body.error.message };
   } catch {
     // not JSON: a proxy's page or S3's XML
   }
@@ -319,7 +326,8 @@ async function fetchWithRetry(ctx, label, url, makeInit) {
     if (waitS === undefined || attempt >= RETRY_DELAYS_S.length) {
       throw new ApiError(0, 'retries:exhausted', `${label} failed ${attempt + 1} times; last: ${failure}`);
     }
-    if (Date.now() + waitS * 1000 >= ctx.deadline) throw new DeadlineError(`timed out after ${ctx.timeoutS} s during ${label} (last: ${failure})`);
+    if (Date.now() + waitS * 1000 >= ctx.deadline)
+      throw new DeadlineError(`timed out after ${ctx.timeoutS} s during ${label} (last: ${failure})`);
     ctx.log.warn(`${label}: ${failure}; retrying in ${waitS} s`);
     await sleep(waitS * 1000);
   }
@@ -397,7 +405,11 @@ async function* fileChunks(file, onProgress) {
 }
 
 async function requestPresignedUpload(ctx, kase) {
-  const body = JSON.stringify({ fileName: path.basename(kase.file), size: kase.size, contentType: contentTypeOf(kase.file) });
+  const body = JSON.stringify({
+    fileName: path.basename(kase.file),
+    size: kase.size,
+    contentType: contentTypeOf(kase.file),
+  });
   const response = await fetchWithRetry(ctx, `presign for ${kase.name}`, `${ctx.baseUrl}/api/v1/uploads`, () => ({
     method: 'POST',
     headers: authHeaders(ctx, { 'content-type': 'application/json' }),
@@ -451,9 +463,16 @@ async function uploadPresigned(ctx, kase, idempotencyKey) {
 async function findEarlierRun(ctx, kase) {
   const query = ctx.config.project ? `?project=${encodeURIComponent(ctx.config.project)}` : '';
   const url = `${ctx.baseUrl}/api/v1/builds/${encodeURIComponent(ctx.config.build)}${query}`;
-  const response = await fetchWithRetry(ctx, `build lookup for ${kase.name}`, url, () => ({ headers: authHeaders(ctx) }));
+  const response = await fetchWithRetry(ctx, `build lookup for ${kase.name}`, url, () => ({
+    headers: authHeaders(ctx),
+  }));
   const run = (await response.json()).runs?.find((r) => r.case === kase.name);
-  if (!run) throw new ApiError(409, 'conflict:idempotency', `The API refused a repeated upload of ${kase.name} and build ${ctx.config.build} has no run for it.`);
+  if (!run)
+    throw new ApiError(
+      409,
+      'conflict:idempotency',
+      `The API refused a repeated upload of ${kase.name} and build ${ctx.config.build} has no run for it.`,
+    );
   ctx.log.info(`${kase.name}: already uploaded in this build; using run ${run.id}`);
   return { id: run.id, status: run.status, url: run.url };
 }
@@ -466,7 +485,9 @@ async function uploadCase(ctx, kase) {
   const presigned = kase.size > ctx.config.presignAbove;
   const run = presigned ? await uploadPresigned(ctx, kase, key) : await uploadMultipart(ctx, kase, key);
   const seconds = ((Date.now() - started) / 1000).toFixed(1);
-  ctx.log.info(`${kase.name}: uploaded ${formatBytes(kase.size)}${presigned ? ' via presigned URL' : ''} in ${seconds} s, run ${run.id}`);
+  ctx.log.info(
+    `${kase.name}: uploaded ${formatBytes(kase.size)}${presigned ? ' via presigned URL' : ''} in ${seconds} s, run ${run.id}`,
+  );
   return run;
 }
 
@@ -533,12 +554,14 @@ async function pollRun(ctx, result) {
       signal: AbortSignal.timeout(Math.max(1000, ctx.deadline - Date.now())),
     });
   } catch (err) {
-    if (err?.name !== 'TimeoutError') ctx.log.warn(`${result.case}: status check failed (${networkErrorMessage(err)}); will try again`);
+    if (err?.name !== 'TimeoutError')
+      ctx.log.warn(`${result.case}: status check failed (${networkErrorMessage(err)}); will try again`);
     return;
   }
   if (!response.ok) {
     const { code, message } = await describeErrorResponse(response);
-    if (isRetryableStatus(response.status)) ctx.log.warn(`${result.case}: status check answered ${message} [${code}]; will try again`);
+    if (isRetryableStatus(response.status))
+      ctx.log.warn(`${result.case}: status check answered ${message} [${code}]; will try again`);
     else markError(result, new ApiError(response.status, code, message));
     return;
   }
@@ -546,7 +569,10 @@ async function pollRun(ctx, result) {
   try {
     report = await response.json();
   } catch (err) {
-    markError(result, new ApiError(response.status, 'invalid:answer', `the status answer is not JSON (${err.message})`));
+    markError(
+      result,
+      new ApiError(response.status, 'invalid:answer', `the status answer is not JSON (${err.message})`),
+    );
     return;
   }
   ctx.note ??= report.note;
@@ -590,17 +616,31 @@ function exitCodeOf(results) {
 }
 
 function oneLine(text, width) {
-  const flat = String(text ?? '').replace(/\s+/g, ' ').trim();
+  const flat = String(text ?? '')
+    .replace(/\s+/g, ' ')
+    .trim();
   return flat.length > width ? `${flat.slice(0, width - 1)}…` : flat;
 }
 
 function renderTable(results, note) {
-  const rows = results.map((r) => [r.case, r.verdict ?? '?', oneLine(r.message ?? '-', TABLE_MESSAGE_WIDTH) || '-', r.url ?? '-']);
+  const rows = results.map((r) => [
+    r.case,
+    r.verdict ?? '?',
+    oneLine(r.message ?? '-', TABLE_MESSAGE_WIDTH) || '-',
+    r.url ?? '-',
+  ]);
   const header = ['case', 'verdict', 'worst finding', 'link'];
   const widths = header.map((h, col) => Math.max(h.length, ...rows.map((row) => row[col].length)));
   const line = (cells) => cells.map((c, col) => (col === cells.length - 1 ? c : c.padEnd(widths[col]))).join('  ');
-  const counts = ['pass', 'warn', 'fail', 'error'].map((v) => `${results.filter((r) => r.verdict === v).length} ${v}`).join(', ');
-  const out = [line(header), ...rows.map(line), '', `${results.length} case${results.length === 1 ? '' : 's'}: ${counts}`];
+  const counts = ['pass', 'warn', 'fail', 'error']
+    .map((v) => `${results.filter((r) => r.verdict === v).length} ${v}`)
+    .join(', ');
+  const out = [
+    line(header),
+    ...rows.map(line),
+    '',
+    `${results.length} case${results.length === 1 ? '' : 's'}: ${counts}`,
+  ];
   if (note) out.push(oneLine(note, 10_000));
   return `${out.join('\n')}\n`;
 }
@@ -612,19 +652,24 @@ function renderJson(config, results, note, exitCode) {
 
 /** XML 1.0 forbids most control characters even as references; drop them, escape the rest. */
 function xmlEscape(text) {
-  return (
-    String(text ?? '')
-      .replace(/[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g, '')
-      .replace(/&/g, '&amp;')
-      .replace(/</g, '&lt;')
-      .replace(/>/g, '&gt;')
-      .replace(/"/g, '&quot;')
-      .replace(/'/g, '&apos;')
-  );
+  return String(text ?? '')
+    .replace(
+      /[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g,
+      '',
+    )
+    .replace(/&/g, '&amp;')
+    .replace(/</g, '&lt;')
+    .replace(/>/g, '&gt;')
+    .replace(/"/g, '&quot;')
+    .replace(/'/g, '&apos;');
 }
 
 function findingLines(result) {
-  return result.findings.map((f) => `${f.severity ?? ''} ${f.variable ?? ''} ${f.kind ?? ''} step ${f.step ?? '?'}: ${f.message ?? ''}`.trim()).join('\n');
+  return result.findings
+    .map((f) =>
+      `${f.severity ?? ''} ${f.variable ?? ''} ${f.kind ?? ''} step ${f.step ?? '?'}: ${f.message ?? ''}`.trim(),
+    )
+    .join('\n');
 }
 
 function junitCase(result, classname) {
@@ -673,7 +718,15 @@ async function run(argv, env) {
     return EXIT.ok;
   }
   const log = makeLogger(config.quiet);
-  const ctx = { config, log, baseUrl: config.baseUrl, token: config.token, timeoutS: config.timeoutS, deadline: started + config.timeoutS * 1000, note: undefined };
+  const ctx = {
+    config,
+    log,
+    baseUrl: config.baseUrl,
+    token: config.token,
+    timeoutS: config.timeoutS,
+    deadline: started + config.timeoutS * 1000,
+    note: undefined,
+  };
   const results = config.cases.map(newResult);
 
   await uploadAll(ctx, results);

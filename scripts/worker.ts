@@ -14,7 +14,9 @@ env(); // fail fast on a bad environment
 const worker = startWorker({ handlers: jobHandlers });
 logger.info({ workerId: worker.workerId, kinds: Object.keys(jobHandlers) }, 'worker started');
 // The digest scheduler is a self-rescheduling hourly job; make sure this hour's tick exists.
-kickOffDigestScheduler().catch((err: unknown) => logger.error({ err }, 'could not start the digest scheduler; the next worker start retries'));
+kickOffDigestScheduler().catch((err: unknown) =>
+  logger.error({ err }, 'could not start the digest scheduler; the next worker start retries'),
+);
 
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {

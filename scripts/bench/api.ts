@@ -25,14 +25,24 @@ const bin = (name: string) => path.join(root, 'node_modules', '.bin', name);
 
 interface ServicesModule {
   freePort(): Promise<number>;
-  startAll(o: { dataDir: string; ports: Record<string, number>; fast: boolean }): Promise<{ env: Record<string, string> }>;
+  startAll(o: {
+    dataDir: string;
+    ports: Record<string, number>;
+    fast: boolean;
+  }): Promise<{ env: Record<string, string> }>;
   stopAll(o: { dataDir: string }): Promise<void>;
 }
 
 /** About 1 MB of long-layout CSV: a van Leer top hat, 1,000 cells, 31 steps. */
 function megabyteCsv(): string {
   const cells = 1000;
-  const snaps = runAdvection1d({ initial: topHat(cells, 200, 200), courant: 0.5, steps: 30, scheme: 'limited', limiter: 'van-leer' });
+  const snaps = runAdvection1d({
+    initial: topHat(cells, 200, 200),
+    courant: 0.5,
+    steps: 30,
+    scheme: 'limited',
+    limiter: 'van-leer',
+  });
   return formatLongCsv({
     steps: snaps.map((_, k) => k),
     times: snaps.map((_, k) => k * 0.0005),
@@ -66,7 +76,11 @@ function runCommand(cmd: string, args: string[], env: NodeJS.ProcessEnv): void {
 }
 
 async function createToken(env: NodeJS.ProcessEnv): Promise<string> {
-  const r = spawnSync(bin('tsx'), ['--conditions=react-server', 'scripts/seed-bench.ts'], { cwd: root, env, encoding: 'utf8' });
+  const r = spawnSync(bin('tsx'), ['--conditions=react-server', 'scripts/seed-bench.ts'], {
+    cwd: root,
+    env,
+    encoding: 'utf8',
+  });
   if (r.status !== 0) throw new Error(`could not create the bench project: ${r.stderr}`);
   return r.stdout.trim().split('\n').pop()!;
 }
@@ -77,7 +91,14 @@ interface ClientStats {
   runIds: string[];
 }
 
-async function client(appUrl: string, token: string, body: Blob, until: number, id: number, stats: ClientStats): Promise<void> {
+async function client(
+  appUrl: string,
+  token: string,
+  body: Blob,
+  until: number,
+  id: number,
+  stats: ClientStats,
+): Promise<void> {
   let n = 0;
   while (Date.now() < until) {
     const form = new FormData();
@@ -123,12 +144,19 @@ async function verdictTimes(appUrl: string, token: string, ids: string[], timeou
 }
 
 export async function run(): Promise<void> {
-  const services = (await import(pathToFileURL(path.join(root, 'scripts', 'lib', 'services.mjs')).href)) as ServicesModule;
+  const services = (await import(
+    pathToFileURL(path.join(root, 'scripts', 'lib', 'services.mjs')).href
+  )) as ServicesModule;
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'varigate-bench-'));
   fs.chmodSync(dataDir, 0o755);
   const children: ChildProcess[] = [];
   try {
-    const ports = { postgres: await services.freePort(), s3: await services.freePort(), smtp: await services.freePort(), mailHttp: await services.freePort() };
+    const ports = {
+      postgres: await services.freePort(),
+      s3: await services.freePort(),
+      smtp: await services.freePort(),
+      mailHttp: await services.freePort(),
+    };
     const appPort = await services.freePort();
     const appUrl = `http://127.0.0.1:${appPort}`;
     const { env: serviceEnv } = await services.startAll({ dataDir, ports, fast: false });
@@ -146,26 +174,52 @@ export async function run(): Promise<void> {
     runCommand(bin('tsx'), ['scripts/migrate.ts'], env);
     if (!fs.existsSync(path.join(root, '.next-test', 'BUILD_ID'))) runCommand(bin('next'), ['build'], env);
     const log = fs.openSync(path.join(dataDir, 'app.log'), 'a');
-    children.push(spawn(bin('next'), ['start', '-p', String(appPort), '-H', '127.0.0.1'], { cwd: root, env, stdio: ['ignore', log, log], detached: true }));
-    children.push(spawn(bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], { cwd: root, env, stdio: ['ignore', log, log], detached: true }));
+    children.push(
+      spawn(bin('next'), ['start', '-p', String(appPort), '-H', '127.0.0.1'], {
+        cwd: root,
+        env,
+        stdio: ['ignore', log, log],
+        detached: true,
+      }),
+    );
+    children.push(
+      spawn(bin('tsx'), ['--conditions=react-server', 'scripts/worker.ts'], {
+        cwd: root,
+        env,
+        stdio: ['ignore', log, log],
+        detached: true,
+      }),
+    );
     await waitHttp(`${appUrl}/api/health`);
     const token = await createToken(env);
 
     const csv = megabyteCsv();
     const body = new Blob([csv], { type: 'text/csv' });
-    console.log(`${CLIENTS} clients posting ${(csv.length / 1e6).toFixed(2)} MB uploads for ${DURATION_S} s against one app and one worker (${os.cpus().length} cores)`);
+    console.log(
+      `${CLIENTS} clients posting ${(csv.length / 1e6).toFixed(2)} MB uploads for ${DURATION_S} s against one app and one worker (${os.cpus().length} cores)`,
+    );
     const stats: ClientStats = { latencies: [], failures: new Map(), runIds: [] };
     const until = Date.now() + DURATION_S * 1000;
     await Promise.all(Array.from({ length: CLIENTS }, (_, i) => client(appUrl, token, body, until, i, stats)));
     const sorted = [...stats.latencies].sort((a, b) => a - b);
     const failed = [...stats.failures.values()].reduce((a, b) => a + b, 0);
-    console.log(`requests: ${stats.latencies.length + failed}, accepted (202): ${stats.runIds.length}, failed: ${failed}${failed ? ` ${JSON.stringify(Object.fromEntries(stats.failures))}` : ''}`);
-    console.log(`throughput: ${(stats.runIds.length / DURATION_S).toFixed(1)} uploads/s, ${((stats.runIds.length * csv.length) / 1e6 / DURATION_S).toFixed(1)} MB/s`);
-    console.log(`POST latency ms: p50 ${percentile(sorted, 50).toFixed(0)}, p95 ${percentile(sorted, 95).toFixed(0)}, p99 ${percentile(sorted, 99).toFixed(0)}, max ${sorted.at(-1)?.toFixed(0)}`);
+    console.log(
+      `requests: ${stats.latencies.length + failed}, accepted (202): ${stats.runIds.length}, failed: ${failed}${failed ? ` ${JSON.stringify(Object.fromEntries(stats.failures))}` : ''}`,
+    );
+    console.log(
+      `throughput: ${(stats.runIds.length / DURATION_S).toFixed(1)} uploads/s, ${((stats.runIds.length * csv.length) / 1e6 / DURATION_S).toFixed(1)} MB/s`,
+    );
+    console.log(
+      `POST latency ms: p50 ${percentile(sorted, 50).toFixed(0)}, p95 ${percentile(sorted, 95).toFixed(0)}, p99 ${percentile(sorted, 99).toFixed(0)}, max ${sorted.at(-1)?.toFixed(0)}`,
+    );
     const drainStarted = Date.now();
     const verdicts = await verdictTimes(appUrl, token, stats.runIds, 30 * 60_000);
-    console.log(`every accepted upload ended in a verdict: ${verdicts.unfinished === 0 ? 'yes' : `NO, ${verdicts.unfinished} unfinished`} (queue drained ${((Date.now() - drainStarted) / 1000).toFixed(0)} s after the load stopped)`);
-    console.log(`POST to verdict s: p50 ${(percentile(verdicts.times, 50) / 1000).toFixed(1)}, p95 ${(percentile(verdicts.times, 95) / 1000).toFixed(1)}, max ${((verdicts.times.at(-1) ?? 0) / 1000).toFixed(1)} (one worker; the queue grows while uploads outpace it)`);
+    console.log(
+      `every accepted upload ended in a verdict: ${verdicts.unfinished === 0 ? 'yes' : `NO, ${verdicts.unfinished} unfinished`} (queue drained ${((Date.now() - drainStarted) / 1000).toFixed(0)} s after the load stopped)`,
+    );
+    console.log(
+      `POST to verdict s: p50 ${(percentile(verdicts.times, 50) / 1000).toFixed(1)}, p95 ${(percentile(verdicts.times, 95) / 1000).toFixed(1)}, max ${((verdicts.times.at(-1) ?? 0) / 1000).toFixed(1)} (one worker; the queue grows while uploads outpace it)`,
+    );
   } finally {
     for (const c of children) {
       try {

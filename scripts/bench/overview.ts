@@ -49,15 +49,27 @@ analyze;
 `;
 
 export async function run(): Promise<void> {
-  const services = (await import(pathToFileURL(path.join(root, 'scripts', 'lib', 'services.mjs')).href)) as ServicesModule;
+  const services = (await import(
+    pathToFileURL(path.join(root, 'scripts', 'lib', 'services.mjs')).href
+  )) as ServicesModule;
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'varigate-bench-overview-'));
   fs.chmodSync(dataDir, 0o755);
   try {
     const pg = await services.startPostgres({ dataDir, port: await services.freePort(), fast: true });
     // Only the database is used; the other settings are placeholders the env check asks for.
-    Object.assign(process.env, { DATABASE_URL: pg.url, S3_BUCKET: 'unused', S3_ACCESS_KEY_ID: 'unused', S3_SECRET_ACCESS_KEY: 'unused', SMTP_URL: 'smtp://127.0.0.1:9' });
+    Object.assign(process.env, {
+      DATABASE_URL: pg.url,
+      S3_BUCKET: 'unused',
+      S3_ACCESS_KEY_ID: 'unused',
+      S3_SECRET_ACCESS_KEY: 'unused',
+      SMTP_URL: 'smtp://127.0.0.1:9',
+    });
     const env = { ...process.env, DATABASE_URL: pg.url };
-    const migrated = spawnSync(path.join(root, 'node_modules', '.bin', 'tsx'), ['scripts/migrate.ts'], { cwd: root, env, stdio: 'inherit' });
+    const migrated = spawnSync(path.join(root, 'node_modules', '.bin', 'tsx'), ['scripts/migrate.ts'], {
+      cwd: root,
+      env,
+      stdio: 'inherit',
+    });
     if (migrated.status !== 0) throw new Error('migrations failed');
     const { getSql, closeDb } = await import('@/db/client');
     const { listOverviewBuilds } = await import('@/src/server/queries/overview');
@@ -66,7 +78,9 @@ export async function run(): Promise<void> {
     await sql.unsafe(SEED);
     const [counts] = await sql<{ builds: number; runs: number; findings: number }[]>`
       select (select count(*) from builds)::int as builds, (select count(*) from runs)::int as runs, (select count(*) from findings)::int as findings`;
-    console.log(`seeded ${counts!.builds} builds, ${counts!.runs} runs, ${counts!.findings} findings in ${((performance.now() - seeded) / 1000).toFixed(1)} s`);
+    console.log(
+      `seeded ${counts!.builds} builds, ${counts!.runs} runs, ${counts!.findings} findings in ${((performance.now() - seeded) / 1000).toFixed(1)} s`,
+    );
 
     const workspaceId = '00000000-0000-4000-8000-000000000001';
     const base = { workspaceId, verdict: 'problems' as const, sort: 'newest' as const, page: 1, pageSize: 25 };
@@ -86,7 +100,9 @@ export async function run(): Promise<void> {
         times.push(performance.now() - t);
       }
       times.sort((a, b) => a - b);
-      console.log(`${label}: median ${times[Math.floor(REPEAT / 2)]!.toFixed(1)} ms, max ${times.at(-1)!.toFixed(1)} ms`);
+      console.log(
+        `${label}: median ${times[Math.floor(REPEAT / 2)]!.toFixed(1)} ms, max ${times.at(-1)!.toFixed(1)} ms`,
+      );
     }
     await closeDb();
   } finally {

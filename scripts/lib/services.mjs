@@ -78,7 +78,8 @@ async function waitFor(what, check, { timeoutMs = 30_000, logFile } = {}) {
     if (await check()) return;
     await sleep(200);
   }
-  const tail = logFile && fs.existsSync(logFile) ? `\n--- ${logFile} ---\n${fs.readFileSync(logFile, 'utf8').slice(-2000)}` : '';
+  const tail =
+    logFile && fs.existsSync(logFile) ? `\n--- ${logFile} ---\n${fs.readFileSync(logFile, 'utf8').slice(-2000)}` : '';
   throw new Error(`${what} did not become ready within ${timeoutMs / 1000} s${tail}`);
 }
 
@@ -110,7 +111,9 @@ export function findPostgresBin() {
   let bin = pick();
   if (bin) return bin;
   if (!isRoot) {
-    throw new Error('No PostgreSQL server found under /usr/lib/postgresql. Install it with: sudo apt-get install -y postgresql');
+    throw new Error(
+      'No PostgreSQL server found under /usr/lib/postgresql. Install it with: sudo apt-get install -y postgresql',
+    );
   }
   log('no PostgreSQL server found: installing Debian package postgresql (apt-get)');
   execFileSync('apt-get', ['update', '-qq'], { stdio: 'inherit' });
@@ -166,7 +169,16 @@ function initCluster(bin, pgDir) {
   const pwFile = path.join(path.dirname(pgDir), 'pg-password.txt');
   fs.writeFileSync(pwFile, `${DB_PASSWORD}\n`, { mode: 0o644 });
   const r = runPg(bin, 'initdb', [
-    '-D', pgDir, '-U', DB_USER, '--pwfile', pwFile, '--auth-local=trust', '--auth-host=scram-sha-256', '--encoding=UTF8', '--locale=C.UTF-8',
+    '-D',
+    pgDir,
+    '-U',
+    DB_USER,
+    '--pwfile',
+    pwFile,
+    '--auth-local=trust',
+    '--auth-host=scram-sha-256',
+    '--encoding=UTF8',
+    '--locale=C.UTF-8',
   ]);
   fs.rmSync(pwFile, { force: true });
   if (r.status !== 0) throw new Error(`initdb failed:\n${r.stdout}\n${r.stderr}`);
@@ -304,7 +316,13 @@ export async function startS3({ dataDir, port }) {
     ports: [port],
     ready: () => httpOk(`http://127.0.0.1:${port}/`),
   });
-  return { endpoint: `http://127.0.0.1:${port}`, bucket: S3_BUCKET, accessKeyId: S3_ACCESS_KEY, secretAccessKey: S3_SECRET_KEY, started };
+  return {
+    endpoint: `http://127.0.0.1:${port}`,
+    bucket: S3_BUCKET,
+    accessKeyId: S3_ACCESS_KEY,
+    secretAccessKey: S3_SECRET_KEY,
+    started,
+  };
 }
 
 export async function startMail({ dataDir, smtpPort, httpPort }) {
@@ -332,16 +350,19 @@ export async function startAll({ dataDir, ports, fast = false }) {
   const s3 = await startS3({ dataDir, port: ports.s3 });
   const mail = await startMail({ dataDir, smtpPort: ports.smtp, httpPort: ports.mailHttp });
   const started = { postgres: pg.started, s3: s3.started, mail: mail.started };
-  return { started, env: {
-    DATABASE_URL: pg.url,
-    S3_ENDPOINT: s3.endpoint,
-    S3_BUCKET: s3.bucket,
-    S3_ACCESS_KEY_ID: s3.accessKeyId,
-    S3_SECRET_ACCESS_KEY: s3.secretAccessKey,
-    S3_REGION: 'us-east-1',
-    SMTP_URL: mail.smtpUrl,
-    MAIL_CATCHER_URL: mail.catcherUrl,
-  } };
+  return {
+    started,
+    env: {
+      DATABASE_URL: pg.url,
+      S3_ENDPOINT: s3.endpoint,
+      S3_BUCKET: s3.bucket,
+      S3_ACCESS_KEY_ID: s3.accessKeyId,
+      S3_SECRET_ACCESS_KEY: s3.secretAccessKey,
+      S3_REGION: 'us-east-1',
+      SMTP_URL: mail.smtpUrl,
+      MAIL_CATCHER_URL: mail.catcherUrl,
+    },
+  };
 }
 
 /** Stops the services named in `only` (all by default). */

@@ -50,7 +50,8 @@ export function ensureChromium() {
 /** Runs a command in the foreground; throws with its name when it fails. */
 export function run(cmd, args, env, { allowFailure = false } = {}) {
   const r = spawnSync(cmd, args, { cwd: root, stdio: 'inherit', env: { ...process.env, ...env } });
-  if (r.status !== 0 && !allowFailure) throw new Error(`${cmd} ${args.join(' ')} failed (exit ${r.status ?? r.signal})`);
+  if (r.status !== 0 && !allowFailure)
+    throw new Error(`${cmd} ${args.join(' ')} failed (exit ${r.status ?? r.signal})`);
   return r.status ?? 1;
 }
 

@@ -37,10 +37,7 @@ export interface Grid {
  * - `float32` / `float64`: binary storage (HDF5, or a typed array written by a tool).
  * - `decimal`: text with at most `significantDigits` significant decimal digits per value.
  */
-export type Precision =
-  | { kind: 'float32' }
-  | { kind: 'float64' }
-  | { kind: 'decimal'; significantDigits: number };
+export type Precision = { kind: 'float32' } | { kind: 'float64' } | { kind: 'decimal'; significantDigits: number };
 
 /** Options a CI upload's manifest (or a case's policy) gives for one variable. */
 export interface VariableOptions {

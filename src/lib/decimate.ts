@@ -43,7 +43,11 @@ export function decimateKeepingExtrema(values: ArrayLike<number>, maxPoints: num
   const n = values.length;
   if (maxPoints < 4) throw new RangeError('maxPoints must be at least 4');
   if (n <= maxPoints) {
-    return { index: Array.from({ length: n }, (_, i) => i), values: Array.from(values as ArrayLike<number>), complete: true };
+    return {
+      index: Array.from({ length: n }, (_, i) => i),
+      values: Array.from(values as ArrayLike<number>),
+      complete: true,
+    };
   }
   const extrema = extremumIndices(values);
   let chosen: number[];

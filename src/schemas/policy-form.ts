@@ -51,13 +51,33 @@ export const POLICY_SETTINGS: readonly SettingSpec[] = [
     kind: 'number',
     group: 'tvGrowth',
     label: '1D: fail above (relative TV increase per step)',
-    help: 'Increase of total variation in one step, relative to the first step\'s TV. The noise floor is always added.',
+    help: "Increase of total variation in one step, relative to the first step's TV. The noise floor is always added.",
   },
   { key: 'tvGrowth.warnRelative', kind: 'number', group: 'tvGrowth', label: '1D: warn above (relative)' },
-  { key: 'tvGrowth.multiDimensional.failRelative', kind: 'number', group: 'tvGrowth', label: '2D/3D: fail above (relative)' },
-  { key: 'tvGrowth.multiDimensional.warnRelative', kind: 'number', group: 'tvGrowth', label: '2D/3D: warn above (relative)' },
-  { key: 'tvGrowth.system.failRelative', kind: 'number', group: 'tvGrowth', label: 'System variables: fail above (relative)' },
-  { key: 'tvGrowth.system.warnRelative', kind: 'number', group: 'tvGrowth', label: 'System variables: warn above (relative)' },
+  {
+    key: 'tvGrowth.multiDimensional.failRelative',
+    kind: 'number',
+    group: 'tvGrowth',
+    label: '2D/3D: fail above (relative)',
+  },
+  {
+    key: 'tvGrowth.multiDimensional.warnRelative',
+    kind: 'number',
+    group: 'tvGrowth',
+    label: '2D/3D: warn above (relative)',
+  },
+  {
+    key: 'tvGrowth.system.failRelative',
+    kind: 'number',
+    group: 'tvGrowth',
+    label: 'System variables: fail above (relative)',
+  },
+  {
+    key: 'tvGrowth.system.warnRelative',
+    kind: 'number',
+    group: 'tvGrowth',
+    label: 'System variables: warn above (relative)',
+  },
   {
     key: 'tvGrowth.smoothProfile',
     kind: 'boolean',
@@ -69,7 +89,12 @@ export const POLICY_SETTINGS: readonly SettingSpec[] = [
   { key: 'newExtrema.allow', kind: 'integer', group: 'newExtrema', label: 'New extrema allowed per step' },
   { key: 'bounds.check', kind: 'check', group: 'bounds', label: 'Bounds check' },
   { key: 'bounds.tolerance', kind: 'number', group: 'bounds', label: 'Tolerance (absolute)' },
-  { key: 'bounds.relativeTolerance', kind: 'number', group: 'bounds', label: "Tolerance (relative to the first step's range)" },
+  {
+    key: 'bounds.relativeTolerance',
+    kind: 'number',
+    group: 'bounds',
+    label: "Tolerance (relative to the first step's range)",
+  },
   { key: 'conservation.check', kind: 'check', group: 'conservation', label: 'Conservation check' },
   { key: 'conservation.warnRelative', kind: 'number', group: 'conservation', label: 'Warn above (relative drift)' },
   { key: 'conservation.failRelative', kind: 'number', group: 'conservation', label: 'Fail above (relative drift)' },
@@ -79,14 +104,26 @@ export const POLICY_SETTINGS: readonly SettingSpec[] = [
     kind: 'number',
     group: 'baseline',
     label: 'Margin (fraction worse than the baseline)',
-    help: '0.1: a metric may exceed the accepted baseline\'s by 10 % before it counts.',
+    help: "0.1: a metric may exceed the accepted baseline's by 10 % before it counts.",
   },
 ];
 
 /** Settings of one variable's override, in the order the form shows them. */
 export const VARIABLE_SETTINGS: readonly SettingSpec[] = [
-  { key: 'system', kind: 'boolean', group: 'variable', label: 'System variable', help: 'A component of a nonlinear system: the looser system TV band applies.' },
-  { key: 'conservative', kind: 'boolean', group: 'variable', label: 'Conservative', help: 'No: the conservation rule is off for this variable.' },
+  {
+    key: 'system',
+    kind: 'boolean',
+    group: 'variable',
+    label: 'System variable',
+    help: 'A component of a nonlinear system: the looser system TV band applies.',
+  },
+  {
+    key: 'conservative',
+    kind: 'boolean',
+    group: 'variable',
+    label: 'Conservative',
+    help: 'No: the conservation rule is off for this variable.',
+  },
   { key: 'tvGrowth.check', kind: 'check', group: 'tvGrowth', label: 'TV growth check' },
   { key: 'tvGrowth.failRelative', kind: 'number', group: 'tvGrowth', label: 'TV: fail above (relative)' },
   { key: 'tvGrowth.warnRelative', kind: 'number', group: 'tvGrowth', label: 'TV: warn above (relative)' },
@@ -94,8 +131,20 @@ export const VARIABLE_SETTINGS: readonly SettingSpec[] = [
   { key: 'newExtrema.check', kind: 'check', group: 'newExtrema', label: 'New extrema check' },
   { key: 'newExtrema.allow', kind: 'integer', group: 'newExtrema', label: 'New extrema allowed per step' },
   { key: 'bounds.check', kind: 'check', group: 'bounds', label: 'Bounds check' },
-  { key: 'bounds.lower', kind: 'number', group: 'bounds', label: 'Physical lower bound', help: "Empty: the manifest's bound, else the first step's minimum." },
-  { key: 'bounds.upper', kind: 'number', group: 'bounds', label: 'Physical upper bound', help: "Empty: the manifest's bound, else the first step's maximum." },
+  {
+    key: 'bounds.lower',
+    kind: 'number',
+    group: 'bounds',
+    label: 'Physical lower bound',
+    help: "Empty: the manifest's bound, else the first step's minimum.",
+  },
+  {
+    key: 'bounds.upper',
+    kind: 'number',
+    group: 'bounds',
+    label: 'Physical upper bound',
+    help: "Empty: the manifest's bound, else the first step's maximum.",
+  },
   { key: 'bounds.tolerance', kind: 'number', group: 'bounds', label: 'Bounds tolerance (absolute)' },
   { key: 'bounds.relativeTolerance', kind: 'number', group: 'bounds', label: 'Bounds tolerance (relative)' },
   { key: 'conservation.check', kind: 'check', group: 'conservation', label: 'Conservation check' },
@@ -118,8 +167,7 @@ export interface VariableOverrideValues {
 export type FieldErrors = Record<string, string[]>;
 
 export type PolicyFormResult =
-  | { ok: true; partial: Record<string, unknown>; effective: Policy }
-  | { ok: false; fieldErrors: FieldErrors };
+  { ok: true; partial: Record<string, unknown>; effective: Policy } | { ok: false; fieldErrors: FieldErrors };
 
 const settingText = z.string().max(100);
 
@@ -202,7 +250,8 @@ function readSettings(source: unknown, specs: readonly SettingSpec[]): Record<st
 /** The form's values for a stored partial policy (a case's policy or a project's default). */
 export function policyToFormValues(partial: unknown): PolicyFormValues {
   const variables = getPath(partial, 'variables');
-  const entries = typeof variables === 'object' && variables !== null && !Array.isArray(variables) ? Object.entries(variables) : [];
+  const entries =
+    typeof variables === 'object' && variables !== null && !Array.isArray(variables) ? Object.entries(variables) : [];
   return {
     settings: readSettings(partial, POLICY_SETTINGS),
     variables: entries.map(([name, override]) => ({ name, settings: readSettings(override, VARIABLE_SETTINGS) })),
@@ -233,7 +282,12 @@ function addError(errors: FieldErrors, key: string, message: string): void {
   (errors[key] ??= []).push(message);
 }
 
-function collectSettings(settings: Record<string, string>, specs: readonly SettingSpec[], errorPrefix: string, errors: FieldErrors): Record<string, unknown> {
+function collectSettings(
+  settings: Record<string, string>,
+  specs: readonly SettingSpec[],
+  errorPrefix: string,
+  errors: FieldErrors,
+): Record<string, unknown> {
   const out: Record<string, unknown> = {};
   for (const spec of specs) {
     const text = settings[spec.key] ?? '';
@@ -258,7 +312,10 @@ function checkVariableName(name: string, index: number, seen: Set<string>, error
  * Variable names are trimmed; they match the file's variables without regard to case, so two
  * names that differ only in case are one variable.
  */
-export function formValuesToPartialPolicy(values: PolicyFormValues): { partial: Record<string, unknown>; fieldErrors: FieldErrors } {
+export function formValuesToPartialPolicy(values: PolicyFormValues): {
+  partial: Record<string, unknown>;
+  fieldErrors: FieldErrors;
+} {
   const fieldErrors: FieldErrors = {};
   const partial = collectSettings(values.settings, POLICY_SETTINGS, '', fieldErrors);
   const seen = new Set<string>();
@@ -281,8 +338,10 @@ const REFINE_TARGETS: { pattern: RegExp; field: string }[] = [
 function friendlyMessage(issue: z.core.$ZodIssue): string {
   if (issue.code === 'too_small' && Number(issue.minimum) === 0) return 'Must not be negative.';
   if (issue.code === 'invalid_type' && issue.expected === 'int') return 'Enter a whole number.';
-  if (issue.message === 'warnRelative must not exceed failRelative') return 'The warn threshold must not exceed the fail threshold.';
-  if (issue.message === 'lower bound must not exceed upper bound') return 'The lower bound must not exceed the upper bound.';
+  if (issue.message === 'warnRelative must not exceed failRelative')
+    return 'The warn threshold must not exceed the fail threshold.';
+  if (issue.message === 'lower bound must not exceed upper bound')
+    return 'The lower bound must not exceed the upper bound.';
   return issue.message;
 }
 
@@ -309,7 +368,8 @@ export function validatePolicyForm(values: PolicyFormValues, inherited: unknown)
   const checked = policySchema.safeParse(mergeDeep(inherited, partial));
   if (!checked.success) {
     const issues = checked.error.issues;
-    for (const issue of issues.filter((i) => i.code !== 'custom')) addError(fieldErrors, issueFieldKey(issue.path, issue.message, values), friendlyMessage(issue));
+    for (const issue of issues.filter((i) => i.code !== 'custom'))
+      addError(fieldErrors, issueFieldKey(issue.path, issue.message, values), friendlyMessage(issue));
     for (const issue of issues.filter((i) => i.code === 'custom')) {
       // A cross-field rule (warn <= fail, lower <= upper) says nothing new while one of its fields is itself wrong.
       const group = issueFieldKey(issue.path, '', values);
@@ -340,5 +400,7 @@ export function valueText(policy: Policy, key: string): string {
 /** How many settings a form sets (for "3 settings differ from the project default"). */
 export function countSetSettings(values: PolicyFormValues): number {
   const own = Object.values(values.settings).filter((t) => t.trim() !== '').length;
-  return own + values.variables.reduce((n, v) => n + 1 + Object.values(v.settings).filter((t) => t.trim() !== '').length, 0);
+  return (
+    own + values.variables.reduce((n, v) => n + 1 + Object.values(v.settings).filter((t) => t.trim() !== '').length, 0)
+  );
 }

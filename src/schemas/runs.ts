@@ -5,7 +5,10 @@ import { ingestManifestSchema } from '@/src/ingest/manifest';
 export const slugSchema = z
   .string()
   .trim()
-  .regex(/^[A-Za-z0-9][A-Za-z0-9._-]{0,99}$/, 'use letters, digits, dot, dash or underscore (at most 100), starting with a letter or digit');
+  .regex(
+    /^[A-Za-z0-9][A-Za-z0-9._-]{0,99}$/,
+    'use letters, digits, dot, dash or underscore (at most 100), starting with a letter or digit',
+  );
 
 export const uploadFormatSchema = z.enum(['csv', 'csv-long', 'csv-wide', 'hdf5', 'netcdf']);
 

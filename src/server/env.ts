@@ -26,9 +26,17 @@ const envSchema = z.object({
   APP_URL: z.url().default('http://localhost:3000'),
   AUTH_SECRET: z.string().min(32, 'AUTH_SECRET must be at least 32 characters').optional(),
   /** Largest file accepted through POST /api/v1/runs (multipart); larger ones go presigned. */
-  VARIGATE_MAX_UPLOAD_BYTES: z.coerce.number().int().positive().default(256 * 1024 * 1024),
+  VARIGATE_MAX_UPLOAD_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(256 * 1024 * 1024),
   /** Largest file accepted through a presigned upload. */
-  VARIGATE_MAX_OBJECT_BYTES: z.coerce.number().int().positive().default(2 * 1024 * 1024 * 1024),
+  VARIGATE_MAX_OBJECT_BYTES: z.coerce
+    .number()
+    .int()
+    .positive()
+    .default(2 * 1024 * 1024 * 1024),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 

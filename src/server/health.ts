@@ -22,7 +22,10 @@ function withTimeout<T>(what: string, promise: Promise<T>): Promise<T> {
   return Promise.race([
     promise,
     new Promise<never>((_, reject) =>
-      setTimeout(() => reject(new Error(`${what} did not answer within ${CHECK_TIMEOUT_MS} ms`)), CHECK_TIMEOUT_MS).unref(),
+      setTimeout(
+        () => reject(new Error(`${what} did not answer within ${CHECK_TIMEOUT_MS} ms`)),
+        CHECK_TIMEOUT_MS,
+      ).unref(),
     ),
   ]);
 }

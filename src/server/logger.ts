@@ -35,8 +35,7 @@ interface LoggerOptions {
 
 export function createLogger(options: LoggerOptions = {}): pino.Logger {
   const level = options.level ?? process.env.LOG_LEVEL ?? 'info';
-  const pretty =
-    options.pretty ?? (process.env.NODE_ENV !== 'production' && process.env.LOG_FORMAT !== 'json');
+  const pretty = options.pretty ?? (process.env.NODE_ENV !== 'production' && process.env.LOG_FORMAT !== 'json');
   const base: pino.LoggerOptions = {
     level,
     base: { service: process.env.VARIGATE_PROCESS ?? 'web' },

@@ -58,7 +58,15 @@ export async function enqueue(input: EnqueueInput, db: Executor = getDb()): Prom
 export async function requeue(dedupeKey: string, db: Executor = getDb()): Promise<void> {
   await db
     .update(jobs)
-    .set({ status: 'queued', runAt: new Date(), attempts: 0, lastError: null, lockedBy: null, lockedUntil: null, finishedAt: null })
+    .set({
+      status: 'queued',
+      runAt: new Date(),
+      attempts: 0,
+      lastError: null,
+      lockedBy: null,
+      lockedUntil: null,
+      finishedAt: null,
+    })
     .where(eq(jobs.dedupeKey, dedupeKey));
 }
 
@@ -152,12 +160,23 @@ export function startWorker(options: WorkerOptions): { stop: () => Promise<void>
   };
 }
 
-async function runJob(sql: Sql, job: JobRow, handler: JobHandler, workerId: string, leaseSeconds: number): Promise<void> {
+async function runJob(
+  sql: Sql,
+  job: JobRow,
+  handler: JobHandler,
+  workerId: string,
+  leaseSeconds: number,
+): Promise<void> {
   const log = logger.child({ jobId: job.id, kind: job.kind, attempt: job.attempts });
-  const renew = setInterval(() => {
-    sql`update jobs set locked_until = now() + make_interval(secs => ${leaseSeconds})
-        where id = ${job.id} and locked_by = ${workerId}`.catch((err: unknown) => log.warn({ err }, 'lease renewal failed'));
-  }, (leaseSeconds * 1000) / 3);
+  const renew = setInterval(
+    () => {
+      sql`update jobs set locked_until = now() + make_interval(secs => ${leaseSeconds})
+        where id = ${job.id} and locked_by = ${workerId}`.catch((err: unknown) =>
+        log.warn({ err }, 'lease renewal failed'),
+      );
+    },
+    (leaseSeconds * 1000) / 3,
+  );
   const started = performance.now();
   try {
     await handler(job);
@@ -167,7 +186,9 @@ async function runJob(sql: Sql, job: JobRow, handler: JobHandler, workerId: stri
     const permanent = err instanceof PermanentJobError;
     const message = err instanceof Error ? err.message : String(err);
     log.error({ err, permanent }, 'job failed');
-    await fail(sql, job, workerId, message, permanent).catch((e: unknown) => log.error({ err: e }, 'could not record job failure'));
+    await fail(sql, job, workerId, message, permanent).catch((e: unknown) =>
+      log.error({ err: e }, 'could not record job failure'),
+    );
   } finally {
     clearInterval(renew);
   }

@@ -90,7 +90,9 @@ export async function presignGet(input: { key: string; fileName?: string; expire
   const command = new GetObjectCommand({
     Bucket: bucket(),
     Key: input.key,
-    ResponseContentDisposition: input.fileName ? `attachment; filename="${input.fileName.replace(/"/g, '')}"` : undefined,
+    ResponseContentDisposition: input.fileName
+      ? `attachment; filename="${input.fileName.replace(/"/g, '')}"`
+      : undefined,
   });
   return getSignedUrl(s3(), command, { expiresIn: input.expiresIn ?? 300 });
 }

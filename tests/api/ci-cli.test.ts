@@ -70,7 +70,20 @@ function runCli(args: string[], env: Record<string, string | undefined> = {}): P
 
 /** The usual flags for the real app; `extra` adds or overrides. */
 function appArgs(build: string, cases: string[], extra: string[] = []): string[] {
-  return ['--url', appUrl(), '--build', build, '--commit', '4be07d1', '--branch', 'main', '--project', project, ...cases.flatMap((c) => ['--case', c]), ...extra];
+  return [
+    '--url',
+    appUrl(),
+    '--build',
+    build,
+    '--commit',
+    '4be07d1',
+    '--branch',
+    'main',
+    '--project',
+    project,
+    ...cases.flatMap((c) => ['--case', c]),
+    ...extra,
+  ];
 }
 
 function parseJsonResult(run: CliRun): CliResult {
@@ -146,9 +159,14 @@ function attrOf(element: string, tag: string, attr: string): string | undefined 
   return m ? unescapeXml(m[1]!) : undefined;
 }
 
-async function getRun(id: string): Promise<{ status: number; body: { run: { id: string; case: string; build: { key: string } } } }> {
+async function getRun(
+  id: string,
+): Promise<{ status: number; body: { run: { id: string; case: string; build: { key: string } } } }> {
   const res = await fetch(`${appUrl()}/api/v1/runs/${id}`, { headers: { authorization: `Bearer ${token}` } });
-  return { status: res.status, body: (await res.json()) as { run: { id: string; case: string; build: { key: string } } } };
+  return {
+    status: res.status,
+    body: (await res.json()) as { run: { id: string; case: string; build: { key: string } } },
+  };
 }
 
 beforeAll(async () => {
@@ -159,7 +177,9 @@ beforeAll(async () => {
   corruptFile = corruptFixtures.find((f) => fs.existsSync(f)) ?? path.join(tmpDir, 'bad-non-numeric.csv');
   if (!fs.existsSync(corruptFile)) {
     const rows = ['step,time,x,u'];
-    for (let step = 0; step < 3; step++) for (let i = 0; i < 20; i++) rows.push(`${step},${step * 0.1},${(i + 0.5) / 20},${i === 7 && step === 1 ? '0.4x1' : 0.5}`);
+    for (let step = 0; step < 3; step++)
+      for (let i = 0; i < 20; i++)
+        rows.push(`${step},${step * 0.1},${(i + 0.5) / 20},${i === 7 && step === 1 ? '0.4x1' : 0.5}`);
     fs.writeFileSync(corruptFile, `${rows.join('\n')}\n`);
   }
 });
@@ -178,7 +198,9 @@ describe('varigate-ci command line', () => {
   });
 
   it('exits 3 naming --build when it is missing, and prints no table', async () => {
-    const args = appArgs('unused', [`pc=${passingFixture}`]).filter((a, i, all) => a !== '--build' && all[i - 1] !== '--build');
+    const args = appArgs('unused', [`pc=${passingFixture}`]).filter(
+      (a, i, all) => a !== '--build' && all[i - 1] !== '--build',
+    );
     const run = await runCli(args, { VARIGATE_TOKEN: token });
     expect(run.code).toBe(3);
     expect(run.stderr).toMatch(/--build is required/);
@@ -194,8 +216,15 @@ describe('varigate-ci command line', () => {
   });
 
   it('exits 3 on a --case without a file, a bad case name or an unknown --format', async () => {
-    for (const extra of [['--case', 'lonely'], ['--case', `bad name=${passingFixture}`], ['--case', `pc=${passingFixture}`, '--format', 'xlsx']]) {
-      const run = await runCli(['--url', appUrl(), '--build', newBuild(), '--commit', 'c', '--branch', 'main', ...extra], { VARIGATE_TOKEN: token });
+    for (const extra of [
+      ['--case', 'lonely'],
+      ['--case', `bad name=${passingFixture}`],
+      ['--case', `pc=${passingFixture}`, '--format', 'xlsx'],
+    ]) {
+      const run = await runCli(
+        ['--url', appUrl(), '--build', newBuild(), '--commit', 'c', '--branch', 'main', ...extra],
+        { VARIGATE_TOKEN: token },
+      );
       expect(run.code, `${extra.join(' ')}\n${run.stderr}`).toBe(3);
       expect(run.stderr).toMatch(/--case|--format/);
     }
@@ -210,7 +239,11 @@ describe('varigate-ci command line', () => {
 
 describe('varigate-ci against the running app', () => {
   it('turns an API refusal (token of another project) into an error row with the API message, exit 2', async () => {
-    const args = appArgs(newBuild(), [`pc=${passingFixture}`], ['--project', `other-${suffix}`, '--json', '--timeout', '30']);
+    const args = appArgs(
+      newBuild(),
+      [`pc=${passingFixture}`],
+      ['--project', `other-${suffix}`, '--json', '--timeout', '30'],
+    );
     const run = await runCli(args, { VARIGATE_TOKEN: token });
     const row = onlyCase(parseJsonResult(run));
     expect(run.code).toBe(2);
@@ -222,7 +255,9 @@ describe('varigate-ci against the running app', () => {
   });
 
   it('reports a CSV with a non-numeric cell as an error row naming the cell, exit 2', { timeout: 90_000 }, async () => {
-    const run = await runCli(appArgs(newBuild(), [`damaged=${corruptFile}`], ['--json', '--timeout', '60']), { VARIGATE_TOKEN: token });
+    const run = await runCli(appArgs(newBuild(), [`damaged=${corruptFile}`], ['--json', '--timeout', '60']), {
+      VARIGATE_TOKEN: token,
+    });
     const row = onlyCase(parseJsonResult(run));
     expect(run.code).toBe(2);
     expect(row.verdict).toBe('error');
@@ -231,50 +266,73 @@ describe('varigate-ci against the running app', () => {
     expect(row.message).toMatch(/not a number/i);
   });
 
-  it.skipIf(!fs.existsSync(failingFixture))('exits 1 with a fail row for the Lax-Wendroff top hat', { timeout: 90_000 }, async () => {
-    const run = await runCli(appArgs(newBuild(), [`tophat-lw=${failingFixture}`], ['--json', '--timeout', '60']), { VARIGATE_TOKEN: token });
-    const result = parseJsonResult(run);
-    const row = onlyCase(result);
-    expect(row.verdict, row.message ?? '').toBe('fail');
-    expect(run.code).toBe(1);
-    expect(row.findings.length).toBeGreaterThan(0);
-    expect(row.message).toBe(row.findings[0]!.message);
-    expect(result.note).toMatch(/does not validate/);
-  });
+  it.skipIf(!fs.existsSync(failingFixture))(
+    'exits 1 with a fail row for the Lax-Wendroff top hat',
+    { timeout: 90_000 },
+    async () => {
+      const run = await runCli(appArgs(newBuild(), [`tophat-lw=${failingFixture}`], ['--json', '--timeout', '60']), {
+        VARIGATE_TOKEN: token,
+      });
+      const result = parseJsonResult(run);
+      const row = onlyCase(result);
+      expect(row.verdict, row.message ?? '').toBe('fail');
+      expect(run.code).toBe(1);
+      expect(row.findings.length).toBeGreaterThan(0);
+      expect(row.message).toBe(row.findings[0]!.message);
+      expect(result.note).toMatch(/does not validate/);
+    },
+  );
 
-  it.skipIf(!fs.existsSync(passingFixture))('exits 0 and prints a pass row for the van Leer top hat', { timeout: 90_000 }, async () => {
-    const run = await runCli(appArgs(newBuild(), [`tophat-vl=${passingFixture}`], ['--timeout', '60']), { VARIGATE_TOKEN: token });
-    expect(run.code, run.stdout + run.stderr).toBe(0);
-    const row = run.stdout.split('\n').find((l) => l.startsWith('tophat-vl '));
-    expect(row).toMatch(/^tophat-vl\s+pass\s/);
-    expect(run.stdout).toMatch(/does not validate/);
-  });
+  it.skipIf(!fs.existsSync(passingFixture))(
+    'exits 0 and prints a pass row for the van Leer top hat',
+    { timeout: 90_000 },
+    async () => {
+      const run = await runCli(appArgs(newBuild(), [`tophat-vl=${passingFixture}`], ['--timeout', '60']), {
+        VARIGATE_TOKEN: token,
+      });
+      expect(run.code, run.stdout + run.stderr).toBe(0);
+      const row = run.stdout.split('\n').find((l) => l.startsWith('tophat-vl '));
+      expect(row).toMatch(/^tophat-vl\s+pass\s/);
+      expect(run.stdout).toMatch(/does not validate/);
+    },
+  );
 
-  it('writes a well-formed JUnit file with one testcase per case matching the verdicts', { timeout: 60_000 }, async () => {
-    const junit = path.join(tmpDir, `junit-${buildCounter}.xml`);
-    const args = appArgs(newBuild(), [`vl=${passingFixture}`, `damaged=${corruptFile}`], ['--json', '--timeout', '4', '--junit', junit]);
-    const run = await runCli(args, { VARIGATE_TOKEN: token });
-    const result = parseJsonResult(run);
-    const xml = fs.readFileSync(junit, 'utf8');
-    assertWellFormedXml(xml);
-    const cases = junitCases(xml);
-    expect(cases.map((c) => c.attrs.name)).toEqual(['vl', 'damaged']);
-    for (const [i, c] of cases.entries()) {
-      const verdict = result.cases[i]!.verdict;
-      expect(c.attrs.classname).toBe(project);
-      expect(c.inner.includes('<error '), `${c.attrs.name}: ${verdict}`).toBe(verdict === 'error');
-      expect(c.inner.includes('<failure '), `${c.attrs.name}: ${verdict}`).toBe(verdict === 'fail');
-    }
-    // The damaged file can never pass: as an analysed error or, before a verdict, a timeout.
-    expect(cases[1]!.inner).toContain('<error ');
-    expect(run.code).toBe(2);
-    expect(attrOf(xml, 'testsuite', 'tests')).toBe('2');
-    expect(attrOf(xml, 'testsuite', 'name')).toBe('varigate');
-  });
+  it(
+    'writes a well-formed JUnit file with one testcase per case matching the verdicts',
+    { timeout: 60_000 },
+    async () => {
+      const junit = path.join(tmpDir, `junit-${buildCounter}.xml`);
+      const args = appArgs(
+        newBuild(),
+        [`vl=${passingFixture}`, `damaged=${corruptFile}`],
+        ['--json', '--timeout', '4', '--junit', junit],
+      );
+      const run = await runCli(args, { VARIGATE_TOKEN: token });
+      const result = parseJsonResult(run);
+      const xml = fs.readFileSync(junit, 'utf8');
+      assertWellFormedXml(xml);
+      const cases = junitCases(xml);
+      expect(cases.map((c) => c.attrs.name)).toEqual(['vl', 'damaged']);
+      for (const [i, c] of cases.entries()) {
+        const verdict = result.cases[i]!.verdict;
+        expect(c.attrs.classname).toBe(project);
+        expect(c.inner.includes('<error '), `${c.attrs.name}: ${verdict}`).toBe(verdict === 'error');
+        expect(c.inner.includes('<failure '), `${c.attrs.name}: ${verdict}`).toBe(verdict === 'fail');
+      }
+      // The damaged file can never pass: as an analysed error or, before a verdict, a timeout.
+      expect(cases[1]!.inner).toContain('<error ');
+      expect(run.code).toBe(2);
+      expect(attrOf(xml, 'testsuite', 'tests')).toBe('2');
+      expect(attrOf(xml, 'testsuite', 'name')).toBe('varigate');
+    },
+  );
 
   it('uploads through a presigned URL above --presign-above, reporting bytes sent', async () => {
     const build = newBuild();
-    const run = await runCli(appArgs(build, [`vl-big=${passingFixture}`], ['--presign-above', '1', '--json', '--timeout', '4']), { VARIGATE_TOKEN: token });
+    const run = await runCli(
+      appArgs(build, [`vl-big=${passingFixture}`], ['--presign-above', '1', '--json', '--timeout', '4']),
+      { VARIGATE_TOKEN: token },
+    );
     const row = onlyCase(parseJsonResult(run));
     expect(row.runId, run.stderr).toMatch(UUID);
     const size = fs.statSync(passingFixture).size;
@@ -289,7 +347,12 @@ describe('varigate-ci against the running app', () => {
 
   it('gives the same run id when the same build, case and file are uploaded again, and a new one for another file', async () => {
     const build = newBuild();
-    const once = async (file: string) => onlyCase(parseJsonResult(await runCli(appArgs(build, [`repeat=${file}`], ['--json', '--timeout', '2']), { VARIGATE_TOKEN: token })));
+    const once = async (file: string) =>
+      onlyCase(
+        parseJsonResult(
+          await runCli(appArgs(build, [`repeat=${file}`], ['--json', '--timeout', '2']), { VARIGATE_TOKEN: token }),
+        ),
+      );
     const first = await once(passingFixture);
     const second = await once(passingFixture);
     expect(first.runId).toMatch(UUID);
@@ -322,13 +385,20 @@ interface FakeRequest {
 }
 type FakeAnswer = { status: number; body: unknown; headers?: Record<string, string> };
 
-async function startFakeApi(answer: (req: FakeRequest, seen: FakeRequest[]) => FakeAnswer): Promise<{ url: string; requests: FakeRequest[]; close: () => Promise<void> }> {
+async function startFakeApi(
+  answer: (req: FakeRequest, seen: FakeRequest[]) => FakeAnswer,
+): Promise<{ url: string; requests: FakeRequest[]; close: () => Promise<void> }> {
   const requests: FakeRequest[] = [];
   const server = http.createServer((req, res) => {
     const chunks: Buffer[] = [];
     req.on('data', (c: Buffer) => chunks.push(c));
     req.on('end', () => {
-      const seen: FakeRequest = { method: req.method ?? '', url: req.url ?? '', headers: req.headers, body: Buffer.concat(chunks).toString('utf8') };
+      const seen: FakeRequest = {
+        method: req.method ?? '',
+        url: req.url ?? '',
+        headers: req.headers,
+        body: Buffer.concat(chunks).toString('utf8'),
+      };
       requests.push(seen);
       const a = answer(seen, requests);
       res.writeHead(a.status, { 'content-type': 'application/json', ...a.headers });
@@ -337,7 +407,11 @@ async function startFakeApi(answer: (req: FakeRequest, seen: FakeRequest[]) => F
   });
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   const { port } = server.address() as AddressInfo;
-  return { url: `http://127.0.0.1:${port}`, requests, close: () => new Promise((resolve) => server.close(() => resolve())) };
+  return {
+    url: `http://127.0.0.1:${port}`,
+    requests,
+    close: () => new Promise((resolve) => server.close(() => resolve())),
+  };
 }
 
 function caseOfMultipart(body: string): string {
@@ -352,19 +426,45 @@ function verdictServer(): Promise<{ url: string; requests: FakeRequest[]; close:
   return startFakeApi((req) => {
     if (req.method === 'POST' && req.url === '/api/v1/runs') {
       const name = caseOfMultipart(req.body);
-      return { status: 202, body: { run: { id: `run-${name}`, status: 'queued', url: `http://varigate.test/runs/${name}` } } };
+      return {
+        status: 202,
+        body: { run: { id: `run-${name}`, status: 'queued', url: `http://varigate.test/runs/${name}` } },
+      };
     }
     const name = /^\/api\/v1\/runs\/run-(.+)$/.exec(req.url)?.[1] ?? '';
     const verdict = name.split('-')[0]!;
-    const findings = verdict === 'fail' || verdict === 'warn' ? [{ variable: 'u', kind: 'tv-growth', severity: verdict, step: 3, message: TRICKY }] : [];
+    const findings =
+      verdict === 'fail' || verdict === 'warn'
+        ? [{ variable: 'u', kind: 'tv-growth', severity: verdict, step: 3, message: TRICKY }]
+        : [];
     const status = verdict === 'error' ? 'error' : 'done';
     const errorMessage = verdict === 'error' ? 'Line 58, column 4 ("u"): "0.98x3" is not a number' : null;
-    return { status: 200, body: { run: { id: `run-${name}`, status, verdict, errorMessage, url: `http://varigate.test/runs/${name}` }, findings, note: NOTE } };
+    return {
+      status: 200,
+      body: {
+        run: { id: `run-${name}`, status, verdict, errorMessage, url: `http://varigate.test/runs/${name}` },
+        findings,
+        note: NOTE,
+      },
+    };
   });
 }
 
 function fakeArgs(url: string, cases: string[], extra: string[] = []): string[] {
-  return ['--url', url, '--token', 'vgt_fake', '--build', 'b1', '--commit', 'c1', '--branch', 'main', ...cases.flatMap((c) => ['--case', `${c}=${passingFixture}`]), ...extra];
+  return [
+    '--url',
+    url,
+    '--token',
+    'vgt_fake',
+    '--build',
+    'b1',
+    '--commit',
+    'c1',
+    '--branch',
+    'main',
+    ...cases.flatMap((c) => ['--case', `${c}=${passingFixture}`]),
+    ...extra,
+  ];
 }
 
 describe('varigate-ci verdicts, reports and retries (stand-in API)', () => {
@@ -388,7 +488,9 @@ describe('varigate-ci verdicts, reports and retries (stand-in API)', () => {
     const fake = await verdictServer();
     const junit = path.join(tmpDir, 'junit-fake.xml');
     try {
-      const run = await runCli(fakeArgs(fake.url, ['pass-a', 'warn-b', 'fail-c', 'error-d'], ['--junit', junit, '--quiet']));
+      const run = await runCli(
+        fakeArgs(fake.url, ['pass-a', 'warn-b', 'fail-c', 'error-d'], ['--junit', junit, '--quiet']),
+      );
       expect(run.code).toBe(2);
       const xml = fs.readFileSync(junit, 'utf8');
       assertWellFormedXml(xml);
@@ -412,10 +514,18 @@ describe('varigate-ci verdicts, reports and retries (stand-in API)', () => {
     const fake = await startFakeApi((req, seen) => {
       if (req.method === 'POST') {
         const posts = seen.filter((r) => r.method === 'POST').length;
-        if (posts === 1) return { status: 503, headers: { 'retry-after': '0' }, body: { error: { code: 'unavailable:storage', message: 'storage is busy' } } };
+        if (posts === 1)
+          return {
+            status: 503,
+            headers: { 'retry-after': '0' },
+            body: { error: { code: 'unavailable:storage', message: 'storage is busy' } },
+          };
         return { status: 202, body: { run: { id: 'run-1', status: 'queued', url: 'http://varigate.test/runs/1' } } };
       }
-      return { status: 200, body: { run: { id: 'run-1', status: 'done', verdict: 'pass', errorMessage: null }, findings: [], note: NOTE } };
+      return {
+        status: 200,
+        body: { run: { id: 'run-1', status: 'done', verdict: 'pass', errorMessage: null }, findings: [], note: NOTE },
+      };
     });
     try {
       const started = Date.now();
@@ -435,7 +545,10 @@ describe('varigate-ci verdicts, reports and retries (stand-in API)', () => {
   });
 
   it('does not retry a 400 and prints the API message as the case error', async () => {
-    const fake = await startFakeApi(() => ({ status: 400, body: { error: { code: 'invalid:run', message: 'commit: the commit is required' } } }));
+    const fake = await startFakeApi(() => ({
+      status: 400,
+      body: { error: { code: 'invalid:run', message: 'commit: the commit is required' } },
+    }));
     try {
       const run = await runCli(fakeArgs(fake.url, ['pass-a'], ['--json']));
       const row = onlyCase(parseJsonResult(run));

@@ -49,7 +49,9 @@ describe('CI token authentication', () => {
     const other = await createTestProject('otter-bay');
     const posted = await postRun(other.token, { build: 'b1', case: 'tophat' }, { path: vanLeer });
     expect(posted.status).toBe(202);
-    const res = await request(appUrl()).get(`/api/v1/runs/${posted.body.run.id}`).set('Authorization', `Bearer ${project.token}`);
+    const res = await request(appUrl())
+      .get(`/api/v1/runs/${posted.body.run.id}`)
+      .set('Authorization', `Bearer ${project.token}`);
     expect(res.status).toBe(404);
     expect(res.body.error.code).toBe('not_found:run');
   });
@@ -99,7 +101,9 @@ describe('POST /api/v1/runs and the analysis worker', () => {
     expect(first.status).toBe(202);
     expect(second.status).toBe(200);
     expect(second.body.run.id).toBe(first.body.run.id);
-    const build = await request(appUrl()).get('/api/v1/builds/nightly-102').set('Authorization', `Bearer ${project.token}`);
+    const build = await request(appUrl())
+      .get('/api/v1/builds/nightly-102')
+      .set('Authorization', `Bearer ${project.token}`);
     expect(build.body.runs).toHaveLength(1);
   });
 
@@ -130,7 +134,11 @@ describe('POST /api/v1/runs and the analysis worker', () => {
       .attach('file', vanLeer);
     expect(noCase.status).toBe(400);
     expect(noCase.body.error.message).toMatch(/^case/);
-    const badManifest = await postRun(project.token, { build: 'b', case: 'x', manifest: { variables: [] } }, { path: vanLeer });
+    const badManifest = await postRun(
+      project.token,
+      { build: 'b', case: 'x', manifest: { variables: [] } },
+      { path: vanLeer },
+    );
     expect(badManifest.status).toBe(400);
     expect(badManifest.body.error.code).toBe('invalid:run');
     expect(badManifest.body.error.message).toMatch(/manifest\.variables/);
@@ -185,7 +193,13 @@ describe('POST /api/v1/runs and the analysis worker', () => {
     const res = await request(appUrl())
       .post('/api/v1/runs')
       .set('Authorization', `Bearer ${project.token}`)
-      .send({ build: 'b', commit: 'c', branch: 'main', case: 'x', objectKey: `incoming/${other.workspaceId}/${other.projectId}/x/file.csv` });
+      .send({
+        build: 'b',
+        commit: 'c',
+        branch: 'main',
+        case: 'x',
+        objectKey: `incoming/${other.workspaceId}/${other.projectId}/x/file.csv`,
+      });
     expect(res.status).toBe(403);
   });
 
@@ -194,7 +208,9 @@ describe('POST /api/v1/runs and the analysis worker', () => {
     const b = await postRun(project.token, { build: 'nightly-107', case: 'bad' }, { path: laxWendroff });
     await waitForRun(project.token, a.body.run.id);
     await waitForRun(project.token, b.body.run.id);
-    const res = await request(appUrl()).get('/api/v1/builds/nightly-107').set('Authorization', `Bearer ${project.token}`);
+    const res = await request(appUrl())
+      .get('/api/v1/builds/nightly-107')
+      .set('Authorization', `Bearer ${project.token}`);
     expect(res.status).toBe(200);
     expect(res.body.build.verdict).toBe('fail');
     expect(res.body.build.finished).toBe(true);
@@ -229,15 +245,25 @@ describe('POST /api/v1/runs and the analysis worker', () => {
   });
 
   it('reads HDF5 uploads: the float64 Lax-Wendroff file fails, the float32 van Leer file passes, and a step is served from HDF5', async () => {
-    const lw = await postRun(project.token, { build: 'nightly-109', case: 'h5-lw' }, { path: fixturePath('snapshots', 'tophat-lax-wendroff.h5') });
-    const vl = await postRun(project.token, { build: 'nightly-109', case: 'h5-vl' }, { path: fixturePath('snapshots', 'tophat-van-leer-float32.h5') });
+    const lw = await postRun(
+      project.token,
+      { build: 'nightly-109', case: 'h5-lw' },
+      { path: fixturePath('snapshots', 'tophat-lax-wendroff.h5') },
+    );
+    const vl = await postRun(
+      project.token,
+      { build: 'nightly-109', case: 'h5-vl' },
+      { path: fixturePath('snapshots', 'tophat-van-leer-float32.h5') },
+    );
     expect(lw.status).toBe(202);
     const lwReport = await waitForRun(project.token, lw.body.run.id);
     const vlReport = await waitForRun(project.token, vl.body.run.id);
     expect(lwReport.run.verdict).toBe('fail');
     expect(vlReport.run.verdict).toBe('pass');
     expect(vlReport.variables[0].precision).toBe('float32');
-    const series = await request(appUrl()).get(`/api/v1/runs/${lw.body.run.id}/series`).set('Authorization', `Bearer ${project.token}`);
+    const series = await request(appUrl())
+      .get(`/api/v1/runs/${lw.body.run.id}/series`)
+      .set('Authorization', `Bearer ${project.token}`);
     const step = await request(appUrl())
       .get(`/api/v1/runs/${lw.body.run.id}/steps/${series.body.series.index[2]}?points=64`)
       .set('Authorization', `Bearer ${project.token}`);
@@ -246,7 +272,11 @@ describe('POST /api/v1/runs and the analysis worker', () => {
   });
 
   it('ends a truncated HDF5 file in verdict error naming the problem', async () => {
-    const res = await postRun(project.token, { build: 'nightly-110', case: 'h5-truncated' }, { path: fixturePath('snapshots', 'truncated.h5') });
+    const res = await postRun(
+      project.token,
+      { build: 'nightly-110', case: 'h5-truncated' },
+      { path: fixturePath('snapshots', 'truncated.h5') },
+    );
     const report = await waitForRun(project.token, res.body.run.id);
     expect(report.run.verdict).toBe('error');
     expect(report.run.errorMessage).toMatch(/HDF5|truncated/i);

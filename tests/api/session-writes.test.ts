@@ -14,12 +14,20 @@ describe('writes made with a session', () => {
     const maintainer = await createTestUser({ workspaceId: project.workspaceId, role: 'maintainer' });
     const cookie = await signInCookie(maintainer, testAddress());
     const body = { workspace: project.workspaceSlug, project: 'wildmere', fileName: 'x.csv', size: 10 };
-    const foreign = await request(appUrl()).post('/api/v1/uploads').set('Cookie', cookie).set('Origin', 'https://elsewhere.example').send(body);
+    const foreign = await request(appUrl())
+      .post('/api/v1/uploads')
+      .set('Cookie', cookie)
+      .set('Origin', 'https://elsewhere.example')
+      .send(body);
     expect(foreign.status).toBe(403);
     expect(foreign.body.error.code).toBe('forbidden:origin');
     const none = await request(appUrl()).post('/api/v1/uploads').set('Cookie', cookie).send(body);
     expect(none.status).toBe(403);
-    const own = await request(appUrl()).post('/api/v1/uploads').set('Cookie', cookie).set('Origin', new URL(appUrl()).origin).send(body);
+    const own = await request(appUrl())
+      .post('/api/v1/uploads')
+      .set('Cookie', cookie)
+      .set('Origin', new URL(appUrl()).origin)
+      .send(body);
     expect(own.status).toBe(201);
   });
 
@@ -43,7 +51,14 @@ describe('accepting an invitation', () => {
     const admin = await createTestUser({ workspaceId: project.workspaceId, role: 'admin' });
     // An invitation as viewer, sent before the person became admin by another way.
     const { secret, hash } = newLinkSecret();
-    await insertInvitation({ workspaceId: project.workspaceId, email: admin.email, role: 'viewer', tokenHash: hash, invitedBy: null, expiresAt: new Date(Date.now() + 3600_000) });
+    await insertInvitation({
+      workspaceId: project.workspaceId,
+      email: admin.email,
+      role: 'viewer',
+      tokenHash: hash,
+      invitedBy: null,
+      expiresAt: new Date(Date.now() + 3600_000),
+    });
     await upsertMembership({ workspaceId: project.workspaceId, userId: admin.id, role: 'admin' });
     await acceptInvitation(secret, { userId: admin.id, email: admin.email });
     const membership = await getMembershipById({ userId: admin.id, workspaceId: project.workspaceId });

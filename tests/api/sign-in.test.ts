@@ -19,13 +19,17 @@ describe('sign-in with e-mail and password', () => {
   it('refuses a wrong password without saying whether the account exists', async () => {
     const user = await createTestUser();
     await expect(signInCookie({ email: user.email, password: 'wrong-password-123' })).rejects.toThrow(/sign-in failed/);
-    await expect(signInCookie({ email: 'nobody-here@marshfield.example', password: 'wrong-password-123' })).rejects.toThrow(/sign-in failed/);
+    await expect(
+      signInCookie({ email: 'nobody-here@marshfield.example', password: 'wrong-password-123' }),
+    ).rejects.toThrow(/sign-in failed/);
   });
 
   it('locks an account after five failed attempts, even with the right password, across addresses', async () => {
     const user = await createTestUser();
     for (let i = 0; i < 5; i++) {
-      await expect(signInCookie({ email: user.email, password: `nope-${i}-xxxxxxxx` }, `10.9.0.${i}`)).rejects.toThrow();
+      await expect(
+        signInCookie({ email: user.email, password: `nope-${i}-xxxxxxxx` }, `10.9.0.${i}`),
+      ).rejects.toThrow();
     }
     await expect(signInCookie(user, '10.9.0.99')).rejects.toThrow(/rate_limited/);
   });
@@ -33,7 +37,10 @@ describe('sign-in with e-mail and password', () => {
   it('sets the session cookie httpOnly and SameSite=Lax', async () => {
     const user = await createTestUser();
     const csrf = await fetch(`${appUrl()}/api/auth/csrf`);
-    const csrfCookie = csrf.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+    const csrfCookie = csrf.headers
+      .getSetCookie()
+      .map((c) => c.split(';')[0])
+      .join('; ');
     const { csrfToken } = (await csrf.json()) as { csrfToken: string };
     const res = await fetch(`${appUrl()}/api/auth/callback/password`, {
       method: 'POST',

@@ -6,10 +6,14 @@ import { createTestProject } from '../support/api';
 import { appUrl } from '../support/env';
 
 function tokenCli(args: string[]) {
-  return spawnSync(path.join(process.cwd(), 'node_modules', '.bin', 'tsx'), ['--conditions=react-server', 'scripts/token.ts', ...args], {
-    encoding: 'utf8',
-    env: { ...process.env, LOG_LEVEL: 'silent' },
-  });
+  return spawnSync(
+    path.join(process.cwd(), 'node_modules', '.bin', 'tsx'),
+    ['--conditions=react-server', 'scripts/token.ts', ...args],
+    {
+      encoding: 'utf8',
+      env: { ...process.env, LOG_LEVEL: 'silent' },
+    },
+  );
 }
 
 describe('npm run token', () => {

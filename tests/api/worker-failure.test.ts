@@ -13,11 +13,15 @@ const laxWendroff = fixturePath('snapshots', 'tophat-lax-wendroff.csv');
 function spawnWorker(extraEnv: Record<string, string> = {}): ChildProcess {
   const logFile = path.join(required('VARIGATE_TEST_DATA_DIR'), 'logs', `test-worker-${Date.now()}.log`);
   const out = fs.openSync(logFile, 'a');
-  return spawn(path.join(process.cwd(), 'node_modules', '.bin', 'tsx'), ['--conditions=react-server', 'scripts/worker.ts'], {
-    env: { ...process.env, NODE_ENV: 'production', VARIGATE_PROCESS: 'test-worker', ...extraEnv },
-    stdio: ['ignore', out, out],
-    detached: true,
-  });
+  return spawn(
+    path.join(process.cwd(), 'node_modules', '.bin', 'tsx'),
+    ['--conditions=react-server', 'scripts/worker.ts'],
+    {
+      env: { ...process.env, NODE_ENV: 'production', VARIGATE_PROCESS: 'test-worker', ...extraEnv },
+      stdio: ['ignore', out, out],
+      detached: true,
+    },
+  );
 }
 
 function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
@@ -83,7 +87,9 @@ describe('the analysis worker under failure', () => {
     const [job] = await getSql()<{ attempts: number; status: string }[]>`
       select attempts, status from jobs where dedupe_key = ${`analyse:${posted.body.run.id}`}`;
     expect(job).toEqual({ attempts: 2, status: 'done' });
-    const [vars] = await getSql()<{ n: number }[]>`select count(*)::int as n from variables where run_id = ${posted.body.run.id}`;
+    const [vars] = await getSql()<
+      { n: number }[]
+    >`select count(*)::int as n from variables where run_id = ${posted.body.run.id}`;
     expect(vars!.n).toBe(report.variables.length);
   });
 

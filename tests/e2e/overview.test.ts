@@ -22,14 +22,30 @@ describe('overview, project and build pages in Chromium', () => {
     project = await createTestProject('reedbank');
     // Night 1: both cases pass. Night 2: the limiter change breaks one of them.
     const n1 = [
-      await postRun(project.token, { build: 'nightly-1', commit: 'aaaa1111', case: 'salt-front', manifest: periodic }, { path: vanLeer }),
-      await postRun(project.token, { build: 'nightly-1', commit: 'aaaa1111', case: 'dye-plume', manifest: periodic }, { path: vanLeer }),
+      await postRun(
+        project.token,
+        { build: 'nightly-1', commit: 'aaaa1111', case: 'salt-front', manifest: periodic },
+        { path: vanLeer },
+      ),
+      await postRun(
+        project.token,
+        { build: 'nightly-1', commit: 'aaaa1111', case: 'dye-plume', manifest: periodic },
+        { path: vanLeer },
+      ),
     ];
     for (const r of n1) await waitForRun(project.token, r.body.run.id);
     await new Promise((r) => setTimeout(r, 20)); // distinct start times
     const n2 = [
-      await postRun(project.token, { build: 'nightly-2', commit: 'bbbb2222', case: 'salt-front', manifest: periodic }, { path: laxWendroff }),
-      await postRun(project.token, { build: 'nightly-2', commit: 'bbbb2222', case: 'dye-plume', manifest: periodic }, { path: vanLeer }),
+      await postRun(
+        project.token,
+        { build: 'nightly-2', commit: 'bbbb2222', case: 'salt-front', manifest: periodic },
+        { path: laxWendroff },
+      ),
+      await postRun(
+        project.token,
+        { build: 'nightly-2', commit: 'bbbb2222', case: 'dye-plume', manifest: periodic },
+        { path: vanLeer },
+      ),
     ];
     for (const r of n2) await waitForRun(project.token, r.body.run.id);
     viewer = await createTestUser({ workspaceId: project.workspaceId, role: 'viewer' });
@@ -68,7 +84,9 @@ describe('overview, project and build pages in Chromium', () => {
     expect(cases).toContain('dye-plume');
     const changes = page.getByTestId('build-changes');
     expect(await changes.textContent()).toContain('salt-front');
-    expect(await changes.locator('[data-verdict]').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict')))).toEqual(['pass', 'fail']);
+    expect(
+      await changes.locator('[data-verdict]').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict'))),
+    ).toEqual(['pass', 'fail']);
     await screenshot(page, 'build');
   });
 
@@ -87,7 +105,13 @@ describe('overview, project and build pages in Chromium', () => {
   it("answers 404 for another workspace's project and build pages", async () => {
     const other = await createTestProject('hidden-fen');
     await postRun(other.token, { build: 'secret-1', case: 'c' }, { path: vanLeer });
-    for (const path of [`/w/${other.workspaceSlug}`, `/w/${other.workspaceSlug}/projects/hidden-fen`, `/w/no-such-workspace`, `/w/${workspaceSlug}/projects/hidden-fen`, `/w/${workspaceSlug}/projects/hidden-fen/builds/secret-1`]) {
+    for (const path of [
+      `/w/${other.workspaceSlug}`,
+      `/w/${other.workspaceSlug}/projects/hidden-fen`,
+      `/w/no-such-workspace`,
+      `/w/${workspaceSlug}/projects/hidden-fen`,
+      `/w/${workspaceSlug}/projects/hidden-fen/builds/secret-1`,
+    ]) {
       const res = await page.goto(`${appUrl()}${path}`);
       expect(res?.status(), path).toBe(404);
     }

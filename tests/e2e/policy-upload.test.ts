@@ -51,7 +51,12 @@ describe('manual upload, case policy and baseline in Chromium', () => {
         const bar = document.querySelector('[role="progressbar"]');
         const v = bar?.getAttribute('aria-valuenow');
         if (v !== null && v !== undefined && w.progressValues.at(-1) !== v) w.progressValues.push(v);
-      }).observe(document.body, { subtree: true, childList: true, attributes: true, attributeFilter: ['aria-valuenow'] });
+      }).observe(document.body, {
+        subtree: true,
+        childList: true,
+        attributes: true,
+        attributeFilter: ['aria-valuenow'],
+      });
     });
   }
 
@@ -64,9 +69,13 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     await form.getByRole('button', { name: 'Upload and analyse' }).click();
     const outcome = await Promise.race([
       page.waitForURL(RUN_URL, { timeout: 60_000 }).then(() => 'run page'),
-      form.getByRole('alert').waitFor({ timeout: 60_000 }).then(() => 'alert'),
+      form
+        .getByRole('alert')
+        .waitFor({ timeout: 60_000 })
+        .then(() => 'alert'),
     ]);
-    if (outcome === 'alert') throw new Error(`upload failed: ${await form.getByRole('alert').textContent()} ${csp.join(' | ')}`);
+    if (outcome === 'alert')
+      throw new Error(`upload failed: ${await form.getByRole('alert').textContent()} ${csp.join(' | ')}`);
   }
 
   async function runVerdict(runId: string): Promise<string | null> {
@@ -127,11 +136,14 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     const csp = cspViolations(page);
     await page.goto(`${appUrl()}/w/${workspace}/upload`);
     const content = fs.readFileSync(laxWendroff, 'utf8');
-    const dataTransfer = await page.evaluateHandle(({ text, name }) => {
-      const dt = new DataTransfer();
-      dt.items.add(new File([text], name, { type: 'text/csv' }));
-      return dt;
-    }, { text: content, name: 'tophat-lax-wendroff.csv' });
+    const dataTransfer = await page.evaluateHandle(
+      ({ text, name }) => {
+        const dt = new DataTransfer();
+        dt.items.add(new File([text], name, { type: 'text/csv' }));
+        return dt;
+      },
+      { text: content, name: 'tophat-lax-wendroff.csv' },
+    );
     await page.getByTestId('drop-zone').dispatchEvent('drop', { dataTransfer });
     await expect(page.getByTestId('chosen-file').textContent()).resolves.toContain('tophat-lax-wendroff.csv');
     const form = page.getByRole('form', { name: 'Upload a snapshot file' });
@@ -142,7 +154,9 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     await expect(page.evaluate(() => document.activeElement?.getAttribute('aria-invalid'))).resolves.toBe('true');
     await form.getByLabel('Case').fill('tophat-dispersive-manual');
     await submitUpload(page, csp);
-    await expect(page.getByRole('heading', { level: 1 }).locator('[data-verdict]').getAttribute('data-verdict')).resolves.toBe('fail');
+    await expect(
+      page.getByRole('heading', { level: 1 }).locator('[data-verdict]').getAttribute('data-verdict'),
+    ).resolves.toBe('fail');
   });
 
   it('shows the verdict a looser policy would give before saving, then saves and re-judges the stored run', async () => {
@@ -182,26 +196,39 @@ describe('manual upload, case policy and baseline in Chromium', () => {
 
     await tv.getByLabel('TV growth check').selectOption('off');
     await form.getByRole('group', { name: 'New extrema' }).getByLabel('New extrema allowed per step').fill('100');
-    await form.getByRole('group', { name: 'Bounds (overshoot and undershoot)' }).getByLabel('Bounds check').selectOption('off');
+    await form
+      .getByRole('group', { name: 'Bounds (overshoot and undershoot)' })
+      .getByLabel('Bounds check')
+      .selectOption('off');
     await form.getByRole('button', { name: 'Preview and save…' }).click();
     const preview = page.getByRole('region', { name: 'Preview of the new policy' });
     await preview.waitFor();
     const sentence = preview.getByTestId('policy-preview-verdict');
-    await expect(sentence.locator('[data-verdict]').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict')))).resolves.toEqual(['fail', 'pass']);
+    await expect(
+      sentence.locator('[data-verdict]').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict'))),
+    ).resolves.toEqual(['fail', 'pass']);
     await screenshot(page, 'policy-upload-preview');
     // Nothing is stored by a preview.
     expect(await runVerdict(runId)).toBe('fail');
 
-    await expect(preview.getByLabel('Re-judge this run with the new policy when saving').isChecked()).resolves.toBe(true);
+    await expect(preview.getByLabel('Re-judge this run with the new policy when saving').isChecked()).resolves.toBe(
+      true,
+    );
     await preview.getByRole('button', { name: 'Save policy' }).click();
     await form.getByText(/re-judged: fail → pass/).waitFor();
     expect(await runVerdict(runId)).toBe('pass');
 
     await page.reload();
-    await expect(page.getByTestId('case-history').locator('[data-verdict]').first().getAttribute('data-verdict')).resolves.toBe('pass');
+    await expect(
+      page.getByTestId('case-history').locator('[data-verdict]').first().getAttribute('data-verdict'),
+    ).resolves.toBe('pass');
     const reloaded = page.getByRole('form', { name: 'Case policy' });
-    await expect(reloaded.getByRole('group', { name: 'Total variation growth' }).getByLabel('TV growth check').inputValue()).resolves.toBe('off');
-    await expect(reloaded.getByRole('group', { name: 'New extrema' }).getByLabel('New extrema allowed per step').inputValue()).resolves.toBe('100');
+    await expect(
+      reloaded.getByRole('group', { name: 'Total variation growth' }).getByLabel('TV growth check').inputValue(),
+    ).resolves.toBe('off');
+    await expect(
+      reloaded.getByRole('group', { name: 'New extrema' }).getByLabel('New extrema allowed per step').inputValue(),
+    ).resolves.toBe('100');
     await screenshot(page, 'policy-upload-case-after-save');
   });
 
@@ -213,23 +240,38 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     await expect(panel.textContent()).resolves.toContain('No baseline on main yet');
     await panel.getByRole('button', { name: 'Accept as baseline…' }).click();
     const dialog = page.getByRole('dialog');
-    await expect(dialog.getByRole('heading').textContent()).resolves.toMatch(/the baseline of tophat-monotone-manual on main\?/);
+    await expect(dialog.getByRole('heading').textContent()).resolves.toMatch(
+      /the baseline of tophat-monotone-manual on main\?/,
+    );
     await expect(dialog.getByTestId('baseline-comparison').locator('tbody tr').count()).resolves.toBe(5);
     await dialog.getByRole('button', { name: 'Accept as baseline' }).click();
     await panel.getByText('This run is the baseline').waitFor();
 
     // A later, worse run of the same case: the confirmation shows both side by side.
-    const posted = await postRun(project.token, { build: 'nightly-901', case: caseName, branch: 'main' }, { path: laxWendroff });
+    const posted = await postRun(
+      project.token,
+      { build: 'nightly-901', case: caseName, branch: 'main' },
+      { path: laxWendroff },
+    );
     await waitForRun(project.token, posted.body.run.id);
     await page.reload();
     await expect(page.getByTestId('baseline-panel').textContent()).resolves.toContain('Current baseline');
     await page.getByTestId('baseline-panel').getByRole('button', { name: 'Accept as baseline…' }).click();
-    await expect(page.getByRole('dialog').getByTestId('baseline-verdicts').locator('[data-verdict]').evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict')))).resolves.toEqual([
-      'pass',
-      'fail',
-    ]);
+    await expect(
+      page
+        .getByRole('dialog')
+        .getByTestId('baseline-verdicts')
+        .locator('[data-verdict]')
+        .evaluateAll((els) => els.map((e) => e.getAttribute('data-verdict'))),
+    ).resolves.toEqual(['pass', 'fail']);
     const table = page.getByRole('dialog').getByTestId('baseline-comparison');
-    await expect(table.locator('thead th').allTextContents()).resolves.toEqual(['Variable', 'Metric', 'Baseline', 'This run', 'Change']);
+    await expect(table.locator('thead th').allTextContents()).resolves.toEqual([
+      'Variable',
+      'Metric',
+      'Baseline',
+      'This run',
+      'Change',
+    ]);
     const extrema = table.locator('tr', { hasText: 'Max new extrema per step' });
     await expect(extrema.locator('td').last().textContent()).resolves.toBe('higher');
     await screenshot(page, 'policy-upload-baseline-confirm');
@@ -245,8 +287,12 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     await expect(page.getByRole('button', { name: /Accept as baseline/ }).count()).resolves.toBe(0);
     const form = page.getByRole('form', { name: 'Case policy' });
     await expect(form.getByRole('button', { name: 'Preview and save…' }).count()).resolves.toBe(0);
-    await expect(form.getByRole('group', { name: 'Total variation growth' }).getByLabel('TV growth check').isDisabled()).resolves.toBe(true);
-    await expect(form.getByText('You can read this policy; maintainers of the workspace change it.').count()).resolves.toBe(1);
+    await expect(
+      form.getByRole('group', { name: 'Total variation growth' }).getByLabel('TV growth check').isDisabled(),
+    ).resolves.toBe(true);
+    await expect(
+      form.getByText('You can read this policy; maintainers of the workspace change it.').count(),
+    ).resolves.toBe(1);
     await screenshot(page, 'policy-upload-viewer-case');
     const upload = await page.goto(`${appUrl()}/w/${workspace}/upload`);
     expect(upload?.status()).toBe(404);
@@ -260,7 +306,11 @@ describe('manual upload, case policy and baseline in Chromium', () => {
     });
     page.on('pageerror', (e) => problems.push(e.message));
     await page.goto(`${appUrl()}/w/${workspace}/upload`);
-    const theme = await page.evaluate(() => ({ cls: document.documentElement.className, media: matchMedia('(prefers-color-scheme: dark)').matches, stored: localStorage.getItem('varigate-theme') }));
+    const theme = await page.evaluate(() => ({
+      cls: document.documentElement.className,
+      media: matchMedia('(prefers-color-scheme: dark)').matches,
+      stored: localStorage.getItem('varigate-theme'),
+    }));
     expect({ theme, problems }).toMatchObject({ theme: { cls: expect.stringContaining('dark') } });
     expect(await page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth + 1)).toBe(true);
     await screenshot(page, 'policy-upload-narrow-dark-upload');

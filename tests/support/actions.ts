@@ -42,17 +42,27 @@ export function builtActions(): Map<string, BuiltAction> {
   const out = new Map<string, BuiltAction>();
   for (const [id, entry] of Object.entries(manifest.node)) {
     if (!entry.filename || !entry.exportedName) continue;
-    out.set(`${entry.filename}#${entry.exportedName}`, { id, file: entry.filename, name: entry.exportedName, pages: Object.keys(entry.workers) });
+    out.set(`${entry.filename}#${entry.exportedName}`, {
+      id,
+      file: entry.filename,
+      name: entry.exportedName,
+      pages: Object.keys(entry.workers),
+    });
   }
   return out;
 }
 
 type EncodeReply = (value: unknown) => Promise<string | FormData>;
-const { encodeReply } = createRequire(import.meta.url)('next/dist/compiled/react-server-dom-webpack/client.node') as { encodeReply: EncodeReply };
+const { encodeReply } = createRequire(import.meta.url)('next/dist/compiled/react-server-dom-webpack/client.node') as {
+  encodeReply: EncodeReply;
+};
 
 export function actionId(key: string): string {
   const found = builtActions().get(key);
-  if (!found) throw new Error(`server action ${key} is not in the build's manifest (not used by any page, or the build is stale)`);
+  if (!found)
+    throw new Error(
+      `server action ${key} is not in the build's manifest (not used by any page, or the build is stale)`,
+    );
   return found.id;
 }
 
@@ -113,5 +123,11 @@ export async function callAction(input: {
   } catch {
     result = undefined;
   }
-  return { status: res.status, redirect: res.headers.get('x-action-redirect'), result, setCookies: res.headers.getSetCookie(), raw };
+  return {
+    status: res.status,
+    redirect: res.headers.get('x-action-redirect'),
+    result,
+    setCookies: res.headers.getSetCookie(),
+    raw,
+  };
 }

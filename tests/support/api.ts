@@ -38,7 +38,12 @@ export interface PostRunFields {
 }
 
 /** Posts a run as a CI job would (multipart), from a file on disk or an in-memory buffer. */
-export function postRun(token: string, fields: PostRunFields, file: { path: string } | { name: string; content: Buffer | string }, idempotencyKey?: string) {
+export function postRun(
+  token: string,
+  fields: PostRunFields,
+  file: { path: string } | { name: string; content: Buffer | string },
+  idempotencyKey?: string,
+) {
   let req = request(appUrl()).post('/api/v1/runs').set('Authorization', `Bearer ${token}`);
   if (idempotencyKey) req = req.set('Idempotency-Key', idempotencyKey);
   req = req

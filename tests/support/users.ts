@@ -12,11 +12,19 @@ export interface TestUser {
 }
 
 /** A user with a known password, member of `workspaceId` with `role` (or of no workspace). */
-export async function createTestUser(options: { workspaceId?: string; role?: Role; name?: string } = {}): Promise<TestUser> {
+export async function createTestUser(
+  options: { workspaceId?: string; role?: Role; name?: string } = {},
+): Promise<TestUser> {
   const email = `${options.role ?? 'person'}-${randomUUID().slice(0, 8)}@marshfield.example`;
   const password = `pw-${randomUUID()}`;
-  const user = await insertUser({ email, name: options.name ?? 'Test person', passwordHash: await hashPassword(password), emailVerified: true });
-  if (options.workspaceId) await upsertMembership({ workspaceId: options.workspaceId, userId: user.id, role: options.role ?? 'viewer' });
+  const user = await insertUser({
+    email,
+    name: options.name ?? 'Test person',
+    passwordHash: await hashPassword(password),
+    emailVerified: true,
+  });
+  if (options.workspaceId)
+    await upsertMembership({ workspaceId: options.workspaceId, userId: user.id, role: options.role ?? 'viewer' });
   return { id: user.id, email, password };
 }
 
@@ -56,7 +64,10 @@ export async function signInPage(page: Page, user: { email: string; password: st
   const form = page.getByRole('form', { name: 'Sign in with password' });
   await form.getByLabel('E-mail').fill(user.email);
   await form.getByLabel('Password').fill(user.password);
-  await Promise.all([page.waitForURL((url) => !url.pathname.startsWith('/sign-in')), form.getByRole('button', { name: 'Sign in' }).click()]);
+  await Promise.all([
+    page.waitForURL((url) => !url.pathname.startsWith('/sign-in')),
+    form.getByRole('button', { name: 'Sign in' }).click(),
+  ]);
   // The landing page redirects once more (to the first workspace) in the browser; a test that
   // opens another page while that is under way races the router, so let it settle first.
   await page.waitForLoadState('networkidle');

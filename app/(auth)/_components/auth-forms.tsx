@@ -25,7 +25,14 @@ export function PasswordSignInForm({ next }: { next: string }) {
       <input type="hidden" name="next" value={next} />
       {state.message ? <Notice tone="error">{state.message}</Notice> : null}
       <Field label="E-mail" name="email" type="email" autoComplete="username" required error={err(state, 'email')} />
-      <Field label="Password" name="password" type="password" autoComplete="current-password" required error={err(state, 'password')} />
+      <Field
+        label="Password"
+        name="password"
+        type="password"
+        autoComplete="current-password"
+        required
+        error={err(state, 'password')}
+      />
       <div className="flex items-center justify-between">
         <Button type="submit" disabled={pending}>
           {pending ? 'Signing in…' : 'Sign in'}
@@ -43,7 +50,15 @@ export function SignInLinkForm() {
   return (
     <form action={action} className="space-y-3" aria-label="E-mail me a sign-in link">
       {state.message ? <Notice tone={state.ok ? 'success' : 'error'}>{state.message}</Notice> : null}
-      <Field label="E-mail" name="email" id="link-email" type="email" autoComplete="email" required error={err(state, 'email')} />
+      <Field
+        label="E-mail"
+        name="email"
+        id="link-email"
+        type="email"
+        autoComplete="email"
+        required
+        error={err(state, 'email')}
+      />
       <Button type="submit" variant="secondary" disabled={pending}>
         E-mail me a sign-in link
       </Button>
@@ -83,8 +98,24 @@ export function NewPasswordForm({ token }: { token: string }) {
     <form action={action} className="space-y-4">
       <input type="hidden" name="token" value={token} />
       {state.message ? <Notice tone="error">{state.message}</Notice> : null}
-      <Field label="New password" name="password" type="password" autoComplete="new-password" required minLength={12} hint="At least 12 characters; not a common password." error={err(state, 'password')} />
-      <Field label="Repeat it" name="confirm" type="password" autoComplete="new-password" required error={err(state, 'confirm')} />
+      <Field
+        label="New password"
+        name="password"
+        type="password"
+        autoComplete="new-password"
+        required
+        minLength={12}
+        hint="At least 12 characters; not a common password."
+        error={err(state, 'password')}
+      />
+      <Field
+        label="Repeat it"
+        name="confirm"
+        type="password"
+        autoComplete="new-password"
+        required
+        error={err(state, 'confirm')}
+      />
       <Button type="submit" disabled={pending}>
         Save the new password
       </Button>
@@ -102,8 +133,24 @@ export function JoinForm({ token, needsAccount, email }: { token: string; needsA
         <>
           <Field label="E-mail" name="email-shown" value={email} readOnly disabled />
           <Field label="Your name" name="name" autoComplete="name" required error={err(state, 'name')} />
-          <Field label="Password" name="password" type="password" autoComplete="new-password" required minLength={12} hint="At least 12 characters; not a common password." error={err(state, 'password')} />
-          <Field label="Repeat the password" name="confirm" type="password" autoComplete="new-password" required error={err(state, 'confirm')} />
+          <Field
+            label="Password"
+            name="password"
+            type="password"
+            autoComplete="new-password"
+            required
+            minLength={12}
+            hint="At least 12 characters; not a common password."
+            error={err(state, 'password')}
+          />
+          <Field
+            label="Repeat the password"
+            name="confirm"
+            type="password"
+            autoComplete="new-password"
+            required
+            error={err(state, 'confirm')}
+          />
         </>
       ) : null}
       <Button type="submit" disabled={pending}>

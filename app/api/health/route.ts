@@ -8,6 +8,11 @@ export async function GET(): Promise<NextResponse> {
   const report = await checkHealth();
   const body = report.ok
     ? { status: 'ok', services: report.services }
-    : { status: 'degraded', message: `unavailable: ${report.down.join(', ')}`, down: report.down, services: report.services };
+    : {
+        status: 'degraded',
+        message: `unavailable: ${report.down.join(', ')}`,
+        down: report.down,
+        services: report.services,
+      };
   return NextResponse.json(body, { status: report.ok ? 200 : 503, headers: { 'cache-control': 'no-store' } });
 }

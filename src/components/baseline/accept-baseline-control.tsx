@@ -46,11 +46,25 @@ function ComparisonTable({ rows, hasBaseline }: { rows: KeyMetricRow[]; hasBasel
         <caption className="sr-only">Key metrics of the current baseline and of this run</caption>
         <thead className="text-xs uppercase tracking-wide text-slate-500 dark:text-slate-400">
           <tr>
-            <th scope="col" className="py-1 pr-3">Variable</th>
-            <th scope="col" className="py-1 pr-3">Metric</th>
-            {hasBaseline ? <th scope="col" className="py-1 pr-3 text-right">Baseline</th> : null}
-            <th scope="col" className="py-1 pr-3 text-right">This run</th>
-            {hasBaseline ? <th scope="col" className="py-1">Change</th> : null}
+            <th scope="col" className="py-1 pr-3">
+              Variable
+            </th>
+            <th scope="col" className="py-1 pr-3">
+              Metric
+            </th>
+            {hasBaseline ? (
+              <th scope="col" className="py-1 pr-3 text-right">
+                Baseline
+              </th>
+            ) : null}
+            <th scope="col" className="py-1 pr-3 text-right">
+              This run
+            </th>
+            {hasBaseline ? (
+              <th scope="col" className="py-1">
+                Change
+              </th>
+            ) : null}
           </tr>
         </thead>
         <tbody className="divide-y divide-slate-100 dark:divide-slate-800">
@@ -58,7 +72,9 @@ function ComparisonTable({ rows, hasBaseline }: { rows: KeyMetricRow[]; hasBasel
             <tr key={`${r.variable}-${r.metric}`}>
               <td className="py-1 pr-3 font-mono">{r.variable}</td>
               <td className="py-1 pr-3">{r.label}</td>
-              {hasBaseline ? <td className="py-1 pr-3 text-right font-mono">{formatMetric(r.baseline, r.integer)}</td> : null}
+              {hasBaseline ? (
+                <td className="py-1 pr-3 text-right font-mono">{formatMetric(r.baseline, r.integer)}</td>
+              ) : null}
               <td className="py-1 pr-3 text-right font-mono">{formatMetric(r.run, r.integer)}</td>
               {hasBaseline ? <td className={`py-1 ${changeClass[r.change]}`}>{changeText[r.change]}</td> : null}
             </tr>
@@ -73,7 +89,17 @@ function ComparisonTable({ rows, hasBaseline }: { rows: KeyMetricRow[]; hasBasel
  * "Accept as baseline…" for maintainers: opens a confirmation that shows what changes (the
  * current baseline's key metrics beside this run's) before anything is stored.
  */
-export function AcceptBaselineControl({ workspace, project, caseName, runId, branch, runBuildKey, runVerdict, current, rows }: AcceptBaselineControlProps) {
+export function AcceptBaselineControl({
+  workspace,
+  project,
+  caseName,
+  runId,
+  branch,
+  runBuildKey,
+  runVerdict,
+  current,
+  rows,
+}: AcceptBaselineControlProps) {
   const dialogRef = useRef<HTMLDialogElement>(null);
   const [state, accept, pending] = useActionState(async (_prev: AcceptBaselineState, input: unknown) => {
     const result = await acceptBaselineAction(input);
@@ -105,7 +131,8 @@ export function AcceptBaselineControl({ workspace, project, caseName, runId, bra
           <p className="flex flex-wrap items-center gap-2 text-sm" data-testid="baseline-verdicts">
             {current ? (
               <>
-                Baseline build <span className="font-mono">{current.buildKey}</span> <VerdictBadge verdict={current.verdict} />
+                Baseline build <span className="font-mono">{current.buildKey}</span>{' '}
+                <VerdictBadge verdict={current.verdict} />
                 <span aria-hidden>→</span>
               </>
             ) : null}
@@ -117,7 +144,10 @@ export function AcceptBaselineControl({ workspace, project, caseName, runId, bra
             <Button variant="secondary" autoFocus onClick={() => dialogRef.current?.close()}>
               Cancel
             </Button>
-            <Button disabled={pending} onClick={() => startTransition(() => accept({ workspace, project, case: caseName, runId, branch }))}>
+            <Button
+              disabled={pending}
+              onClick={() => startTransition(() => accept({ workspace, project, case: caseName, runId, branch }))}
+            >
               {pending ? 'Accepting…' : 'Accept as baseline'}
             </Button>
           </div>

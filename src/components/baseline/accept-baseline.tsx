@@ -26,7 +26,14 @@ export type AcceptBaselinePanelProps = {
  * baseline after a confirmation showing both runs' key metrics. Server component: it loads what
  * it shows itself, so any page can embed it with the ids it already has.
  */
-export async function AcceptBaselinePanel({ workspace, project, caseName, runId, branch, canAccept }: AcceptBaselinePanelProps) {
+export async function AcceptBaselinePanel({
+  workspace,
+  project,
+  caseName,
+  runId,
+  branch,
+  canAccept,
+}: AcceptBaselinePanelProps) {
   const member = await requireMember(workspace);
   const comparison = await getBaselineComparison(member, { projectSlug: project, caseName, runId, branch });
   if (!comparison) return null;
@@ -51,7 +58,9 @@ export async function AcceptBaselinePanel({ workspace, project, caseName, runId,
           <p>No baseline on {branch} yet: runs are judged by the policy alone.</p>
         )}
         {comparison.isCurrent ? null : run.status !== 'done' ? (
-          <p className="text-slate-500 dark:text-slate-400">Only an analysed run can become the baseline (this one is {run.status}).</p>
+          <p className="text-slate-500 dark:text-slate-400">
+            Only an analysed run can become the baseline (this one is {run.status}).
+          </p>
         ) : allowed ? (
           <AcceptBaselineControl
             workspace={workspace}

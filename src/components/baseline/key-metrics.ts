@@ -51,9 +51,15 @@ export function changeOf(baseline: number | null, run: number | null): MetricCha
  * One row per variable and key metric, variables in the run's order, then those only the
  * baseline has. Variables match by name, as the judge matches them.
  */
-export function compareKeyMetrics(baseline: readonly VariableMetrics[] | null, run: readonly VariableMetrics[]): KeyMetricRow[] {
+export function compareKeyMetrics(
+  baseline: readonly VariableMetrics[] | null,
+  run: readonly VariableMetrics[],
+): KeyMetricRow[] {
   const base = new Map((baseline ?? []).map((v) => [v.variable, v]));
-  const names = [...run.map((v) => v.variable), ...(baseline ?? []).map((v) => v.variable).filter((n) => !run.some((r) => r.variable === n))];
+  const names = [
+    ...run.map((v) => v.variable),
+    ...(baseline ?? []).map((v) => v.variable).filter((n) => !run.some((r) => r.variable === n)),
+  ];
   const rows: KeyMetricRow[] = [];
   for (const name of names) {
     const b = base.get(name);
@@ -61,7 +67,15 @@ export function compareKeyMetrics(baseline: readonly VariableMetrics[] | null, r
     for (const m of KEY_METRICS) {
       const bv = baseline === null ? null : valueOf(b, m.key);
       const rv = valueOf(r, m.key);
-      rows.push({ variable: name, metric: m.key, label: m.label, integer: m.integer, baseline: bv, run: rv, change: baseline === null ? 'only-run' : changeOf(bv, rv) });
+      rows.push({
+        variable: name,
+        metric: m.key,
+        label: m.label,
+        integer: m.integer,
+        baseline: bv,
+        run: rv,
+        change: baseline === null ? 'only-run' : changeOf(bv, rv),
+      });
     }
   }
   return rows;

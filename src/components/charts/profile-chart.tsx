@@ -2,15 +2,8 @@
 
 import * as d3 from 'd3';
 import { useEffect, useId, useMemo, useRef, type KeyboardEvent, type ReactNode } from 'react';
-import {
-  extentOf,
-  formatNumber,
-  frameScales,
-  innerSize,
-  tickCount,
-  type BoundSpan,
-  type Frame,
-} from '@/src/lib/chart-math';
+import { extentOf, formatNumber, frameScales, innerSize, type BoundSpan, type Frame } from '@/src/lib/chart-math';
+import { drawFrame } from './frame';
 import { useChartWidth } from './use-chart-width';
 
 /** One profile of a 1D field: kept cell indices and their values. */
@@ -90,44 +83,17 @@ export function ProfileChart({
     const root = d3.select(svg);
     root.selectAll('*').remove();
     const g = root.append('g').attr('transform', `translate(${MARGIN.left},${MARGIN.top})`);
-    g.append('g')
-      .attr('class', 'text-slate-200 dark:text-slate-800')
-      .call(
-        d3
-          .axisLeft(sy)
-          .ticks(tickCount(h, 40))
-          .tickSize(-w)
-          .tickFormat(() => ''),
-      )
-      .call((sel) => sel.select('.domain').remove());
-    g.append('g')
-      .attr('transform', `translate(0,${h})`)
-      .call(
-        d3
-          .axisBottom(sx)
-          .ticks(tickCount(w))
-          .tickFormat((v) => (Number.isInteger(Number(v)) ? String(v) : '')),
-      );
-    g.append('g').call(
-      d3
-        .axisLeft(sy)
-        .ticks(tickCount(h, 40))
-        .tickFormat((v) => formatNumber(Number(v))),
-    );
-    g.append('text')
-      .attr('x', w)
-      .attr('y', h + 30)
-      .attr('text-anchor', 'end')
-      .attr('class', 'fill-current text-[11px]')
-      .text(xLabel);
-    g.append('text')
-      .attr('x', -MARGIN.left + 4)
-      .attr('y', -2)
-      .attr('class', 'fill-current text-[11px]')
-      .text(yLabel);
-
-    g.append('clipPath').attr('id', clipId).append('rect').attr('width', w).attr('height', h);
-    const plot = g.append('g').attr('clip-path', `url(#${clipId})`);
+    const plot = drawFrame(g, clipId, {
+      sx,
+      sy,
+      width: w,
+      height: h,
+      margin: MARGIN,
+      xLabel,
+      yLabel,
+      xTickFormat: (v) => (Number.isInteger(Number(v)) ? String(v) : ''),
+      yLabelOffset: 2,
+    });
     if (highlight) {
       plot
         .append('rect')

@@ -2,15 +2,8 @@
 
 import * as d3 from 'd3';
 import { useEffect, useId, useMemo, useRef, useState, type KeyboardEvent } from 'react';
-import {
-  extentOf,
-  formatNumber,
-  frameScales,
-  innerSize,
-  nearestIndex,
-  tickCount,
-  type Frame,
-} from '@/src/lib/chart-math';
+import { extentOf, formatNumber, frameScales, innerSize, nearestIndex, type Frame } from '@/src/lib/chart-math';
+import { drawFrame } from './frame';
 import { useChartWidth } from './use-chart-width';
 
 /** One curve over steps; `x` defaults to the chart's `x`. */
@@ -115,44 +108,7 @@ export function SeriesChart({
     const g = root.append('g').attr('transform', `translate(${MARGIN.left},${MARGIN.top})`);
     const { x: sx, y: sy } = scales;
 
-    g.append('g')
-      .attr('class', 'text-slate-200 dark:text-slate-800')
-      .call(
-        d3
-          .axisLeft(sy)
-          .ticks(tickCount(h, 40))
-          .tickSize(-w)
-          .tickFormat(() => ''),
-      )
-      .call((sel) => sel.select('.domain').remove());
-    g.append('g')
-      .attr('transform', `translate(0,${h})`)
-      .call(
-        d3
-          .axisBottom(sx)
-          .ticks(tickCount(w))
-          .tickFormat((v) => formatNumber(Number(v))),
-      );
-    g.append('g').call(
-      d3
-        .axisLeft(sy)
-        .ticks(tickCount(h, 40))
-        .tickFormat((v) => formatNumber(Number(v))),
-    );
-    g.append('text')
-      .attr('x', w)
-      .attr('y', h + 30)
-      .attr('text-anchor', 'end')
-      .attr('class', 'fill-current text-[11px]')
-      .text(xLabel);
-    g.append('text')
-      .attr('x', -MARGIN.left + 4)
-      .attr('y', -6)
-      .attr('class', 'fill-current text-[11px]')
-      .text(yLabel);
-
-    g.append('clipPath').attr('id', clipId).append('rect').attr('width', w).attr('height', h);
-    const plot = g.append('g').attr('clip-path', `url(#${clipId})`);
+    const plot = drawFrame(g, clipId, { sx, sy, width: w, height: h, margin: MARGIN, xLabel, yLabel, yLabelOffset: 6 });
     for (const band of bands) {
       const area = d3
         .area<number>()

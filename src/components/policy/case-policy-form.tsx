@@ -1,10 +1,24 @@
 'use client';
 
-import { startTransition, useActionState, useEffect, useMemo, useRef, useState, type FormEvent, type RefObject } from 'react';
+import {
+  startTransition,
+  useActionState,
+  useEffect,
+  useMemo,
+  useRef,
+  useState,
+  type FormEvent,
+  type RefObject,
+} from 'react';
 import { Button } from '@/src/components/ui/button';
 import { Notice } from '@/src/components/ui/notice';
 import { VerdictBadge } from '@/src/components/ui/verdict-badge';
-import { inheritedPolicy, validatePolicyForm, type FieldErrors, type PolicyFormValues } from '@/src/schemas/policy-form';
+import {
+  inheritedPolicy,
+  validatePolicyForm,
+  type FieldErrors,
+  type PolicyFormValues,
+} from '@/src/schemas/policy-form';
 import type { PolicyPreviewState, PolicyPreviewView, PolicySaveState } from './policy-form-state';
 import { PolicyFields } from './policy-fields';
 import { PolicyHelp } from './policy-help';
@@ -58,19 +72,33 @@ export function CasePolicyForm(props: CasePolicyFormProps) {
   const key = keyOf(values);
 
   const [preview, requestPreview, previewPending] = useActionState(
-    async (_prev: Keyed<PolicyPreviewState>, input: CaseInput): Promise<Keyed<PolicyPreviewState>> => ({ ...(await props.previewAction(input)), key: keyOf(input.values) }),
+    async (_prev: Keyed<PolicyPreviewState>, input: CaseInput): Promise<Keyed<PolicyPreviewState>> => ({
+      ...(await props.previewAction(input)),
+      key: keyOf(input.values),
+    }),
     {},
   );
   const [saved, requestSave, savePending] = useActionState(
-    async (_prev: Keyed<PolicySaveState>, input: CaseInput): Promise<Keyed<PolicySaveState>> => ({ ...(await props.saveAction(input)), key: keyOf(input.values) }),
+    async (_prev: Keyed<PolicySaveState>, input: CaseInput): Promise<Keyed<PolicySaveState>> => ({
+      ...(await props.saveAction(input)),
+      key: keyOf(input.values),
+    }),
     {},
   );
 
   const savedNow = saved.key === key && saved.ok === true;
   const previewNow = preview.key === key && preview.previewed === true && !savedNow;
-  const serverErrors = (preview.key === key ? preview.fieldErrors : undefined) ?? (saved.key === key ? saved.fieldErrors : undefined) ?? {};
+  const serverErrors =
+    (preview.key === key ? preview.fieldErrors : undefined) ??
+    (saved.key === key ? saved.fieldErrors : undefined) ??
+    {};
   const errors: FieldErrors = { ...serverErrors, ...clientErrors };
-  const problem = preview.key === key && preview.message && !preview.previewed ? preview.message : saved.key === key && !saved.ok ? saved.message : undefined;
+  const problem =
+    preview.key === key && preview.message && !preview.previewed
+      ? preview.message
+      : saved.key === key && !saved.ok
+        ? saved.message
+        : undefined;
   useFocusFirstError(refusedAttempts, formRef);
 
   useEffect(() => {
@@ -109,17 +137,37 @@ export function CasePolicyForm(props: CasePolicyFormProps) {
       <PolicyHelp level="case" readOnly={readOnly} />
       <fieldset disabled={readOnly} className="min-w-0">
         <legend className="sr-only">Settings of case {caseName}</legend>
-        <PolicyFields level="case" values={values} onChange={change} inherited={inherited} errors={errors} readOnly={readOnly} />
+        <PolicyFields
+          level="case"
+          values={values}
+          onChange={change}
+          inherited={inherited}
+          errors={errors}
+          readOnly={readOnly}
+        />
       </fieldset>
       {problem ? <Notice tone="error">{problem}</Notice> : null}
-      {Object.keys(clientErrors).length > 0 ? <Notice tone="error">Some fields need attention; they are marked above.</Notice> : null}
+      {Object.keys(clientErrors).length > 0 ? (
+        <Notice tone="error">Some fields need attention; they are marked above.</Notice>
+      ) : null}
       {savedNow && saved.message ? <Notice tone="success">{saved.message}</Notice> : null}
       {readOnly ? null : previewNow ? (
-        <div ref={previewRef} tabIndex={-1} role="region" aria-label="Preview of the new policy" className="space-y-3 rounded-lg border border-sky-300 bg-sky-50 p-4 focus:outline-none dark:border-sky-800 dark:bg-sky-950">
+        <div
+          ref={previewRef}
+          tabIndex={-1}
+          role="region"
+          aria-label="Preview of the new policy"
+          className="space-y-3 rounded-lg border border-sky-300 bg-sky-50 p-4 focus:outline-none dark:border-sky-800 dark:bg-sky-950"
+        >
           <PreviewSummary preview={preview.preview ?? null} />
           {preview.preview ? (
             <label className="flex items-center gap-2 text-sm">
-              <input type="checkbox" checked={rejudge} onChange={(e) => setRejudge(e.target.checked)} className="h-4 w-4" />
+              <input
+                type="checkbox"
+                checked={rejudge}
+                onChange={(e) => setRejudge(e.target.checked)}
+                className="h-4 w-4"
+              />
               Re-judge this run with the new policy when saving
             </label>
           ) : null}
@@ -127,7 +175,11 @@ export function CasePolicyForm(props: CasePolicyFormProps) {
             <Button type="button" onClick={save} disabled={savePending}>
               {savePending ? 'Saving…' : 'Save policy'}
             </Button>
-            <Button type="button" variant="secondary" onClick={() => formRef.current?.querySelector<HTMLElement>('select, input')?.focus()}>
+            <Button
+              type="button"
+              variant="secondary"
+              onClick={() => formRef.current?.querySelector<HTMLElement>('select, input')?.focus()}
+            >
               Keep editing
             </Button>
           </div>
@@ -141,7 +193,9 @@ export function CasePolicyForm(props: CasePolicyFormProps) {
             Discard changes
           </Button>
           <span className="text-xs text-slate-500 dark:text-slate-400">
-            {latestRun ? `The preview re-judges the latest analysed run (build ${latestRun.buildKey}); nothing is stored until you save.` : 'This case has no analysed run to preview on yet.'}
+            {latestRun
+              ? `The preview re-judges the latest analysed run (build ${latestRun.buildKey}); nothing is stored until you save.`
+              : 'This case has no analysed run to preview on yet.'}
           </span>
         </div>
       )}
@@ -151,14 +205,19 @@ export function CasePolicyForm(props: CasePolicyFormProps) {
 
 function PreviewSummary({ preview }: { preview: PolicyPreviewView | null }) {
   if (!preview) {
-    return <p className="text-sm">This case has no analysed run yet, so there is nothing to preview. The policy applies to its next run.</p>;
+    return (
+      <p className="text-sm">
+        This case has no analysed run yet, so there is nothing to preview. The policy applies to its next run.
+      </p>
+    );
   }
   const shown = preview.findings.slice(0, 8);
   return (
     <div className="space-y-2 text-sm">
       <p data-testid="policy-preview-verdict">
-        The latest run (build <span className="font-mono">{preview.run.buildKey}</span> on {preview.run.branch}) is now <VerdictBadge verdict={preview.run.verdict} />; with
-        this policy it would be <VerdictBadge verdict={preview.verdict} />.
+        The latest run (build <span className="font-mono">{preview.run.buildKey}</span> on {preview.run.branch}) is now{' '}
+        <VerdictBadge verdict={preview.run.verdict} />; with this policy it would be{' '}
+        <VerdictBadge verdict={preview.verdict} />.
         {preview.baselineRunId ? ' Compared with the accepted baseline.' : ''}
       </p>
       {shown.length > 0 ? (
@@ -172,7 +231,9 @@ function PreviewSummary({ preview }: { preview: PolicyPreviewView | null }) {
       ) : (
         <p>No findings.</p>
       )}
-      {preview.findings.length > shown.length ? <p className="text-xs">and {preview.findings.length - shown.length} more.</p> : null}
+      {preview.findings.length > shown.length ? (
+        <p className="text-xs">and {preview.findings.length - shown.length} more.</p>
+      ) : null}
     </div>
   );
 }

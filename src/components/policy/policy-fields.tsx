@@ -42,7 +42,12 @@ function boolWord(text: string): string {
 }
 
 /** "default 1e-9 · project 1e-8": where an empty field's value comes from. */
-function inheritedHint(level: PolicyFieldsProps['level'], key: string, inherited: Policy, kind: SettingSpec['kind']): string {
+function inheritedHint(
+  level: PolicyFieldsProps['level'],
+  key: string,
+  inherited: Policy,
+  kind: SettingSpec['kind'],
+): string {
   const builtIn = defaultText(key);
   const current = valueText(inherited, key);
   const show = kind === 'boolean' ? boolWord : (t: string) => t;
@@ -152,7 +157,8 @@ function withSetting(settings: Record<string, string>, key: string, text: string
  */
 export function PolicyFields({ level, values, onChange, inherited, errors, readOnly }: PolicyFieldsProps) {
   const prefix = useId().replace(/:/g, '');
-  const setPolicySetting = (key: string, text: string) => onChange({ ...values, settings: withSetting(values.settings, key, text) });
+  const setPolicySetting = (key: string, text: string) =>
+    onChange({ ...values, settings: withSetting(values.settings, key, text) });
   return (
     <div className="space-y-4">
       {POLICY_GROUPS.map((group) => (
@@ -181,7 +187,8 @@ export function PolicyFields({ level, values, onChange, inherited, errors, readO
         </Group>
       ))}
       <p className="text-sm text-slate-600 dark:text-slate-300">
-        <strong className="font-semibold">Non-finite values</strong> (NaN, infinity) always fail; no policy switches that off.
+        <strong className="font-semibold">Non-finite values</strong> (NaN, infinity) always fail; no policy switches
+        that off.
       </p>
       <VariableOverrides values={values} onChange={onChange} errors={errors} readOnly={readOnly} prefix={prefix} />
     </div>
@@ -198,7 +205,8 @@ type VariableOverridesProps = {
 
 function variableHint(spec: SettingSpec): string {
   if (spec.help) return spec.help;
-  if (spec.key.startsWith('tvGrowth.') && spec.kind === 'number') return "Empty: the band of the variable's class (1D, 2D/3D or system).";
+  if (spec.key.startsWith('tvGrowth.') && spec.kind === 'number')
+    return "Empty: the band of the variable's class (1D, 2D/3D or system).";
   return 'Empty: the policy-wide setting.';
 }
 
@@ -211,7 +219,8 @@ function VariableOverrides({ values, onChange, errors, readOnly, prefix }: Varia
   const add = () => {
     const name = newName.trim();
     if (name === '') return setAddError('Type the variable name first.');
-    if (values.variables.some((v) => v.name.trim().toLowerCase() === name.toLowerCase())) return setAddError(`"${name}" already has an override.`);
+    if (values.variables.some((v) => v.name.trim().toLowerCase() === name.toLowerCase()))
+      return setAddError(`"${name}" already has an override.`);
     setAddError(null);
     setNewName('');
     onChange({ ...values, variables: [...values.variables, { name, settings: {} }] });
@@ -233,19 +242,28 @@ function VariableOverrides({ values, onChange, errors, readOnly, prefix }: Varia
         Per-variable overrides
       </h3>
       <p className="text-xs text-slate-500 dark:text-slate-400">
-        Physical bounds, the system-variable flag and rules for one variable of the file (matched by name, ignoring case). They win over the
-        upload&apos;s manifest and over the settings above.
+        Physical bounds, the system-variable flag and rules for one variable of the file (matched by name, ignoring
+        case). They win over the upload&apos;s manifest and over the settings above.
       </p>
-      {values.variables.length === 0 ? <p className="text-sm text-slate-500 dark:text-slate-400">No variable overrides.</p> : null}
+      {values.variables.length === 0 ? (
+        <p className="text-sm text-slate-500 dark:text-slate-400">No variable overrides.</p>
+      ) : null}
       {values.variables.map((v, index) => {
         const rowPrefix = `${prefix}-var-${index}`;
         const label = v.name.trim() || `variable ${index + 1}`;
         return (
-          <fieldset key={index} className="rounded-lg border border-slate-200 p-3 dark:border-slate-800" data-testid="variable-override">
+          <fieldset
+            key={index}
+            className="rounded-lg border border-slate-200 p-3 dark:border-slate-800"
+            data-testid="variable-override"
+          >
             <legend className="px-1 text-sm font-semibold text-slate-800 dark:text-slate-100">Variable {label}</legend>
             <div className="mb-3 flex flex-wrap items-end gap-3">
               <div className="min-w-48 flex-1">
-                <label htmlFor={`${rowPrefix}-name`} className="block text-sm font-medium text-slate-700 dark:text-slate-200">
+                <label
+                  htmlFor={`${rowPrefix}-name`}
+                  className="block text-sm font-medium text-slate-700 dark:text-slate-200"
+                >
                   Variable name
                 </label>
                 <input
@@ -264,12 +282,18 @@ function VariableOverrides({ values, onChange, errors, readOnly, prefix }: Varia
                 ) : null}
               </div>
               {readOnly ? null : (
-                <Button variant="secondary" onClick={() => remove(index)} aria-label={`Remove the override of ${label}`}>
+                <Button
+                  variant="secondary"
+                  onClick={() => remove(index)}
+                  aria-label={`Remove the override of ${label}`}
+                >
                   Remove
                 </Button>
               )}
             </div>
-            {errors[`variables.${index}.bounds`] ? <p className="mb-2 text-xs text-verdict-fail">{errors[`variables.${index}.bounds`]!.join(' ')}</p> : null}
+            {errors[`variables.${index}.bounds`] ? (
+              <p className="mb-2 text-xs text-verdict-fail">{errors[`variables.${index}.bounds`]!.join(' ')}</p>
+            ) : null}
             <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
               {VARIABLE_SETTINGS.map((spec) => (
                 <SettingInput
@@ -278,7 +302,11 @@ function VariableOverrides({ values, onChange, errors, readOnly, prefix }: Varia
                   spec={spec}
                   value={v.settings[spec.key] ?? ''}
                   onChange={(text) => update(index, { settings: withSetting(v.settings, spec.key, text) })}
-                  inheritedText={spec.key.startsWith('bounds.lower') || spec.key.startsWith('bounds.upper') ? 'none declared' : 'policy-wide'}
+                  inheritedText={
+                    spec.key.startsWith('bounds.lower') || spec.key.startsWith('bounds.upper')
+                      ? 'none declared'
+                      : 'policy-wide'
+                  }
                   hint={variableHint(spec)}
                   error={errors[`variables.${index}.${spec.key}`]}
                   readOnly={readOnly}

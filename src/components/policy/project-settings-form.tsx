@@ -6,7 +6,12 @@ import { DEFAULT_POLICY } from '@/src/analysis/policy';
 import { Button } from '@/src/components/ui/button';
 import { Field } from '@/src/components/ui/field';
 import { Notice } from '@/src/components/ui/notice';
-import { projectSettingsInputSchema, validatePolicyForm, type FieldErrors, type PolicyFormValues } from '@/src/schemas/policy-form';
+import {
+  projectSettingsInputSchema,
+  validatePolicyForm,
+  type FieldErrors,
+  type PolicyFormValues,
+} from '@/src/schemas/policy-form';
 import type { PolicySaveState } from './policy-form-state';
 import { PolicyFields } from './policy-fields';
 import { PolicyHelp } from './policy-help';
@@ -34,14 +39,24 @@ function checkSettings(name: string, defaultBranch: string, values: PolicyFormVa
 }
 
 /** Project settings for maintainers: name, default branch and the default policy of its cases. */
-export function ProjectSettingsForm({ workspace, project, initialName, initialDefaultBranch, initialValues, saveAction }: ProjectSettingsFormProps) {
+export function ProjectSettingsForm({
+  workspace,
+  project,
+  initialName,
+  initialDefaultBranch,
+  initialValues,
+  saveAction,
+}: ProjectSettingsFormProps) {
   const [name, setName] = useState(initialName);
   const [defaultBranch, setDefaultBranch] = useState(initialDefaultBranch);
   const [values, setValues] = useState(initialValues);
   const [clientErrors, setClientErrors] = useState<FieldErrors>({});
   const [refusedAttempts, setRefusedAttempts] = useState(0);
   const formRef = useRef<HTMLFormElement>(null);
-  const [state, requestSave, pending] = useActionState(async (_prev: PolicySaveState, input: unknown) => saveAction(input), {});
+  const [state, requestSave, pending] = useActionState(
+    async (_prev: PolicySaveState, input: unknown) => saveAction(input),
+    {},
+  );
   const errors: FieldErrors = { ...(state.fieldErrors ?? {}), ...clientErrors };
 
   useEffect(() => {
@@ -62,7 +77,15 @@ export function ProjectSettingsForm({ workspace, project, initialName, initialDe
   return (
     <form ref={formRef} onSubmit={onSubmit} aria-label="Project settings" noValidate className="space-y-6">
       <div className="grid gap-4 sm:grid-cols-2">
-        <Field label="Name" name="name" value={name} onChange={(e) => setName(e.target.value)} error={errors.name?.[0]} required maxLength={100} />
+        <Field
+          label="Name"
+          name="name"
+          value={name}
+          onChange={(e) => setName(e.target.value)}
+          error={errors.name?.[0]}
+          required
+          maxLength={100}
+        />
         <Field
           label="Default branch"
           name="defaultBranch"
@@ -78,7 +101,14 @@ export function ProjectSettingsForm({ workspace, project, initialName, initialDe
           Default policy
         </h2>
         <PolicyHelp level="project" readOnly={false} />
-        <PolicyFields level="project" values={values} onChange={setValues} inherited={DEFAULT_POLICY} errors={errors} readOnly={false} />
+        <PolicyFields
+          level="project"
+          values={values}
+          onChange={setValues}
+          inherited={DEFAULT_POLICY}
+          errors={errors}
+          readOnly={false}
+        />
       </section>
       {state.message ? <Notice tone={state.ok ? 'success' : 'error'}>{state.message}</Notice> : null}
       <Button type="submit" disabled={pending}>

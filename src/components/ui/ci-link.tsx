@@ -13,7 +13,12 @@ export function CiLink({ url }: CiLinkProps) {
     <>
       {' '}
       ·{' '}
-      <a href={href} className="text-sky-700 hover:underline dark:text-sky-400" rel="noopener noreferrer" target="_blank">
+      <a
+        href={href}
+        className="text-sky-700 hover:underline dark:text-sky-400"
+        rel="noopener noreferrer"
+        target="_blank"
+      >
         CI build page
       </a>
     </>

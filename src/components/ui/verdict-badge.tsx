@@ -12,7 +12,10 @@ const styles: Record<string, string> = {
 export function VerdictBadge({ verdict, status }: VerdictBadgeProps) {
   const label = verdict ?? (status === 'analysing' ? 'analysing' : status === 'queued' ? 'queued' : 'pending');
   return (
-    <span className={`inline-block rounded px-1.5 py-0.5 text-xs font-semibold uppercase tracking-wide ${styles[verdict ?? 'pending']}`} data-verdict={verdict ?? 'none'}>
+    <span
+      className={`inline-block rounded px-1.5 py-0.5 text-xs font-semibold uppercase tracking-wide ${styles[verdict ?? 'pending']}`}
+      data-verdict={verdict ?? 'none'}
+    >
       {label}
     </span>
   );

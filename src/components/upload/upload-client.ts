@@ -23,7 +23,9 @@ async function failure(res: Response, step: string): Promise<UploadStepError> {
   } catch {
     // Not JSON (a proxy's error page): fall back to the status.
   }
-  return new UploadStepError(body?.error?.message ? `${step}: ${body.error.message}` : `${step} failed (HTTP ${res.status}).`);
+  return new UploadStepError(
+    body?.error?.message ? `${step}: ${body.error.message}` : `${step} failed (HTTP ${res.status}).`,
+  );
 }
 
 export interface PresignedUpload {
@@ -32,7 +34,13 @@ export interface PresignedUpload {
   headers: Record<string, string>;
 }
 
-export async function requestPresignedUpload(input: { workspace: string; project: string; fileName: string; size: number; contentType: string }): Promise<PresignedUpload> {
+export async function requestPresignedUpload(input: {
+  workspace: string;
+  project: string;
+  fileName: string;
+  size: number;
+  contentType: string;
+}): Promise<PresignedUpload> {
   const res = await fetch('/api/v1/uploads', {
     method: 'POST',
     headers: { 'content-type': 'application/json' },
@@ -47,7 +55,12 @@ export async function requestPresignedUpload(input: { workspace: string; project
  * PUTs the file to the presigned URL, reporting bytes sent. Resolves when storage answered 2xx.
  * The request is cross-origin: the bucket's CORS rule and the page's CSP connect-src must allow it.
  */
-export function putFileWithProgress(upload: PresignedUpload, file: Blob, onProgress: (sent: number, total: number) => void, signal?: AbortSignal): Promise<void> {
+export function putFileWithProgress(
+  upload: PresignedUpload,
+  file: Blob,
+  onProgress: (sent: number, total: number) => void,
+  signal?: AbortSignal,
+): Promise<void> {
   return new Promise((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('PUT', upload.url);
@@ -62,7 +75,12 @@ export function putFileWithProgress(upload: PresignedUpload, file: Blob, onProgr
       }
     };
     // Network failures, CORS refusals and CSP blocks all end here, without details (browsers hide them).
-    xhr.onerror = () => reject(new UploadStepError('The file could not be sent to object storage (network, CORS or content-security-policy refusal).'));
+    xhr.onerror = () =>
+      reject(
+        new UploadStepError(
+          'The file could not be sent to object storage (network, CORS or content-security-policy refusal).',
+        ),
+      );
     xhr.onabort = () => reject(new UploadStepError('The upload was cancelled.'));
     signal?.addEventListener('abort', () => xhr.abort(), { once: true });
     xhr.send(file);
@@ -118,7 +136,11 @@ const sleep = (ms: number, signal?: AbortSignal) =>
   });
 
 /** Polls the run until it is done or in error: every 0.5 s at first, then less often, at most every 3 s. */
-export async function waitForRunVerdict(id: string, onStatus: (s: RunStatus) => void, signal?: AbortSignal): Promise<RunStatus> {
+export async function waitForRunVerdict(
+  id: string,
+  onStatus: (s: RunStatus) => void,
+  signal?: AbortSignal,
+): Promise<RunStatus> {
   let delay = 500;
   for (;;) {
     const res = await fetch(`/api/v1/runs/${encodeURIComponent(id)}`, { cache: 'no-store', signal });

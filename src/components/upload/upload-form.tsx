@@ -7,8 +7,23 @@ import { Button } from '@/src/components/ui/button';
 import { Notice } from '@/src/components/ui/notice';
 import { VerdictBadge } from '@/src/components/ui/verdict-badge';
 import { runTargetSchema } from '@/src/schemas/runs';
-import { newIdempotencyKey, postRun, putFileWithProgress, requestPresignedUpload, waitForRunVerdict, type RunStatus } from './upload-client';
-import { EMPTY_MANIFEST_FORM, buildManifest, contentTypeFor, formatBytes, isAcceptedFile, type ManifestFieldErrors, type ManifestFormValues } from './upload-manifest';
+import {
+  newIdempotencyKey,
+  postRun,
+  putFileWithProgress,
+  requestPresignedUpload,
+  waitForRunVerdict,
+  type RunStatus,
+} from './upload-client';
+import {
+  EMPTY_MANIFEST_FORM,
+  buildManifest,
+  contentTypeFor,
+  formatBytes,
+  isAcceptedFile,
+  type ManifestFieldErrors,
+  type ManifestFormValues,
+} from './upload-manifest';
 
 export type UploadFormProps = {
   workspace: string;
@@ -24,7 +39,19 @@ const targetSchema = runTargetSchema.pick({ build: true, commit: true, branch: t
 const inputClass =
   'mt-1 block w-full rounded-md border border-slate-300 bg-white px-2.5 py-1.5 text-sm text-slate-900 shadow-sm focus:border-sky-600 focus:outline-none focus:ring-1 focus:ring-sky-600 disabled:opacity-60 aria-[invalid=true]:border-verdict-fail dark:border-slate-700 dark:bg-slate-900 dark:text-slate-100';
 
-function Labelled({ id, label, hint, error, children }: { id: string; label: string; hint?: string; error?: string; children: ReactNode }) {
+function Labelled({
+  id,
+  label,
+  hint,
+  error,
+  children,
+}: {
+  id: string;
+  label: string;
+  hint?: string;
+  error?: string;
+  children: ReactNode;
+}) {
   return (
     <div>
       <label htmlFor={id} className="block text-sm font-medium text-slate-700 dark:text-slate-200">
@@ -47,7 +74,10 @@ function Labelled({ id, label, hint, error, children }: { id: string; label: str
 
 /** aria attributes tying an input to its hint or error. */
 function describe(id: string, hint: boolean, error?: string) {
-  return { 'aria-invalid': error ? true : undefined, 'aria-describedby': error ? `${id}-error` : hint ? `${id}-hint` : undefined } as const;
+  return {
+    'aria-invalid': error ? true : undefined,
+    'aria-describedby': error ? `${id}-error` : hint ? `${id}-hint` : undefined,
+  } as const;
 }
 
 const STEPS: { phase: Phase; label: string }[] = [
@@ -132,7 +162,9 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
 
   const check = (): { manifest?: ReturnType<typeof buildManifest>['manifest'] } | null => {
     const target = targetSchema.safeParse({ build, commit, branch, case: caseName });
-    const found: Record<string, string | undefined> = target.success ? {} : Object.fromEntries(Object.entries(z.flattenError(target.error).fieldErrors).map(([k, v]) => [k, v?.[0]]));
+    const found: Record<string, string | undefined> = target.success
+      ? {}
+      : Object.fromEntries(Object.entries(z.flattenError(target.error).fieldErrors).map(([k, v]) => [k, v?.[0]]));
     if (!selected) found.project = 'Choose a project.';
     const built = buildManifest(manifest);
     setErrors(found);
@@ -167,12 +199,28 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
     try {
       setPhase('presign');
       const contentType = contentTypeFor(file.name);
-      const upload = await requestPresignedUpload({ workspace, project: selected.slug, fileName: file.name, size: file.size, contentType });
+      const upload = await requestPresignedUpload({
+        workspace,
+        project: selected.slug,
+        fileName: file.name,
+        size: file.size,
+        contentType,
+      });
       setPhase((at = 'upload'));
       await putFileWithProgress(upload, file, (sent, total) => setProgress({ sent, total }), abort.signal);
       setPhase((at = 'post'));
       const created = await postRun(
-        { workspace, project: selected.slug, build: build.trim(), commit: commit.trim(), branch: branch.trim(), case: caseName.trim(), manifest: ok.manifest, objectKey: upload.objectKey, fileName: file.name },
+        {
+          workspace,
+          project: selected.slug,
+          build: build.trim(),
+          commit: commit.trim(),
+          branch: branch.trim(),
+          case: caseName.trim(),
+          manifest: ok.manifest,
+          objectKey: upload.objectKey,
+          fileName: file.name,
+        },
         newIdempotencyKey(),
       );
       setRun({ id: created.id, status: null });
@@ -190,11 +238,19 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
     abortRef.current?.abort();
     setPhase('failed');
     setFailedAt(phase);
-    setMessage(phase === 'analyse' ? 'Stopped waiting; the run is still analysed and will appear on its case page.' : 'Upload cancelled.');
+    setMessage(
+      phase === 'analyse'
+        ? 'Stopped waiting; the run is still analysed and will appear on its case page.'
+        : 'Upload cancelled.',
+    );
   };
 
   if (projects.length === 0) {
-    return <Notice>This workspace has no project yet. A project is created with the first CI upload of its token, or by an admin.</Notice>;
+    return (
+      <Notice>
+        This workspace has no project yet. A project is created with the first CI upload of its token, or by an admin.
+      </Notice>
+    );
   }
 
   const percent = progress.total > 0 ? Math.round((progress.sent / progress.total) * 100) : 0;
@@ -214,7 +270,9 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
         data-testid="drop-zone"
         className={`rounded-lg border-2 border-dashed p-6 text-center transition-colors ${dragging ? 'border-sky-500 bg-sky-50 dark:bg-sky-950' : 'border-slate-300 dark:border-slate-700'}`}
       >
-        <p className="text-sm text-slate-600 dark:text-slate-300">Drop a snapshot file here (CSV, .csv.gz, HDF5 or NetCDF-4), or</p>
+        <p className="text-sm text-slate-600 dark:text-slate-300">
+          Drop a snapshot file here (CSV, .csv.gz, HDF5 or NetCDF-4), or
+        </p>
         <input
           id={fileInputId}
           type="file"
@@ -250,7 +308,13 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
       <fieldset disabled={busy} className="grid min-w-0 gap-4 sm:grid-cols-2 lg:grid-cols-3">
         <legend className="mb-2 text-sm font-semibold">Where the run belongs</legend>
         <Labelled id={`${id}-project`} label="Project" error={errors.project}>
-          <select id={`${id}-project`} className={inputClass} value={project} onChange={(e) => chooseProject(e.target.value)} {...describe(`${id}-project`, false, errors.project)}>
+          <select
+            id={`${id}-project`}
+            className={inputClass}
+            value={project}
+            onChange={(e) => chooseProject(e.target.value)}
+            {...describe(`${id}-project`, false, errors.project)}
+          >
             {projects.map((p) => (
               <option key={p.slug} value={p.slug}>
                 {p.name} ({p.slug})
@@ -258,16 +322,42 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
             ))}
           </select>
         </Labelled>
-        <Labelled id={`${id}-case`} label="Case" hint="An existing case, or a new name (letters, digits, . - _)." error={errors.case}>
-          <input id={`${id}-case`} className={inputClass} value={caseName} onChange={(e) => setCaseName(e.target.value)} list={`${id}-cases`} autoComplete="off" required {...describe(`${id}-case`, true, errors.case)} />
+        <Labelled
+          id={`${id}-case`}
+          label="Case"
+          hint="An existing case, or a new name (letters, digits, . - _)."
+          error={errors.case}
+        >
+          <input
+            id={`${id}-case`}
+            className={inputClass}
+            value={caseName}
+            onChange={(e) => setCaseName(e.target.value)}
+            list={`${id}-cases`}
+            autoComplete="off"
+            required
+            {...describe(`${id}-case`, true, errors.case)}
+          />
           <datalist id={`${id}-cases`}>
             {(selected?.cases ?? []).map((c) => (
               <option key={c} value={c} />
             ))}
           </datalist>
         </Labelled>
-        <Labelled id={`${id}-build`} label="Build key" hint="Manual uploads of one day share a build by default." error={errors.build}>
-          <input id={`${id}-build`} className={inputClass} value={build} onChange={(e) => setBuild(e.target.value)} required {...describe(`${id}-build`, true, errors.build)} />
+        <Labelled
+          id={`${id}-build`}
+          label="Build key"
+          hint="Manual uploads of one day share a build by default."
+          error={errors.build}
+        >
+          <input
+            id={`${id}-build`}
+            className={inputClass}
+            value={build}
+            onChange={(e) => setBuild(e.target.value)}
+            required
+            {...describe(`${id}-build`, true, errors.build)}
+          />
         </Labelled>
         <Labelled id={`${id}-branch`} label="Branch" error={errors.branch}>
           <input
@@ -282,39 +372,119 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
             {...describe(`${id}-branch`, false, errors.branch)}
           />
         </Labelled>
-        <Labelled id={`${id}-commit`} label="Commit" hint='Optional; "manual" when it is not a commit.' error={errors.commit}>
-          <input id={`${id}-commit`} className={inputClass} value={commit} onChange={(e) => setCommit(e.target.value)} {...describe(`${id}-commit`, true, errors.commit)} />
+        <Labelled
+          id={`${id}-commit`}
+          label="Commit"
+          hint='Optional; "manual" when it is not a commit.'
+          error={errors.commit}
+        >
+          <input
+            id={`${id}-commit`}
+            className={inputClass}
+            value={commit}
+            onChange={(e) => setCommit(e.target.value)}
+            {...describe(`${id}-commit`, true, errors.commit)}
+          />
         </Labelled>
       </fieldset>
 
       <fieldset disabled={busy} className="grid min-w-0 gap-4 sm:grid-cols-2 lg:grid-cols-3">
         <legend className="mb-2 text-sm font-semibold">How to read it (manifest, all optional)</legend>
-        <Labelled id={`${id}-variables`} label="Variable name(s)" hint="Separated by commas; empty reads every variable of the file." error={manifestErrors.variables}>
-          <input id={`${id}-variables`} className={inputClass} value={m.variables} onChange={(e) => setM({ variables: e.target.value })} placeholder="e.g. salinity" autoComplete="off" {...describe(`${id}-variables`, true, manifestErrors.variables)} />
+        <Labelled
+          id={`${id}-variables`}
+          label="Variable name(s)"
+          hint="Separated by commas; empty reads every variable of the file."
+          error={manifestErrors.variables}
+        >
+          <input
+            id={`${id}-variables`}
+            className={inputClass}
+            value={m.variables}
+            onChange={(e) => setM({ variables: e.target.value })}
+            placeholder="e.g. salinity"
+            autoComplete="off"
+            {...describe(`${id}-variables`, true, manifestErrors.variables)}
+          />
         </Labelled>
-        <Labelled id={`${id}-periodic`} label="Periodic axes" hint="Axis names that wrap round, e.g. x." error={manifestErrors.periodicAxes}>
-          <input id={`${id}-periodic`} className={inputClass} value={m.periodicAxes} onChange={(e) => setM({ periodicAxes: e.target.value })} autoComplete="off" {...describe(`${id}-periodic`, true, manifestErrors.periodicAxes)} />
+        <Labelled
+          id={`${id}-periodic`}
+          label="Periodic axes"
+          hint="Axis names that wrap round, e.g. x."
+          error={manifestErrors.periodicAxes}
+        >
+          <input
+            id={`${id}-periodic`}
+            className={inputClass}
+            value={m.periodicAxes}
+            onChange={(e) => setM({ periodicAxes: e.target.value })}
+            autoComplete="off"
+            {...describe(`${id}-periodic`, true, manifestErrors.periodicAxes)}
+          />
         </Labelled>
-        <Labelled id={`${id}-velocity`} label="Velocity sign" hint="Along the fastest axis; lets findings say upstream or downstream.">
-          <select id={`${id}-velocity`} className={inputClass} value={m.velocitySign} onChange={(e) => setM({ velocitySign: e.target.value as ManifestFormValues['velocitySign'] })} {...describe(`${id}-velocity`, true)}>
+        <Labelled
+          id={`${id}-velocity`}
+          label="Velocity sign"
+          hint="Along the fastest axis; lets findings say upstream or downstream."
+        >
+          <select
+            id={`${id}-velocity`}
+            className={inputClass}
+            value={m.velocitySign}
+            onChange={(e) => setM({ velocitySign: e.target.value as ManifestFormValues['velocitySign'] })}
+            {...describe(`${id}-velocity`, true)}
+          >
             <option value="">not given</option>
             <option value="1">positive (+1)</option>
             <option value="-1">negative (−1)</option>
           </select>
         </Labelled>
-        <Labelled id={`${id}-lower`} label="Physical lower bound" hint="e.g. 0 for a concentration." error={manifestErrors.lowerBound}>
-          <input id={`${id}-lower`} className={inputClass} inputMode="decimal" value={m.lowerBound} onChange={(e) => setM({ lowerBound: e.target.value })} {...describe(`${id}-lower`, true, manifestErrors.lowerBound)} />
+        <Labelled
+          id={`${id}-lower`}
+          label="Physical lower bound"
+          hint="e.g. 0 for a concentration."
+          error={manifestErrors.lowerBound}
+        >
+          <input
+            id={`${id}-lower`}
+            className={inputClass}
+            inputMode="decimal"
+            value={m.lowerBound}
+            onChange={(e) => setM({ lowerBound: e.target.value })}
+            {...describe(`${id}-lower`, true, manifestErrors.lowerBound)}
+          />
         </Labelled>
-        <Labelled id={`${id}-upper`} label="Physical upper bound" hint="e.g. 1 for a mass fraction." error={manifestErrors.upperBound}>
-          <input id={`${id}-upper`} className={inputClass} inputMode="decimal" value={m.upperBound} onChange={(e) => setM({ upperBound: e.target.value })} {...describe(`${id}-upper`, true, manifestErrors.upperBound)} />
+        <Labelled
+          id={`${id}-upper`}
+          label="Physical upper bound"
+          hint="e.g. 1 for a mass fraction."
+          error={manifestErrors.upperBound}
+        >
+          <input
+            id={`${id}-upper`}
+            className={inputClass}
+            inputMode="decimal"
+            value={m.upperBound}
+            onChange={(e) => setM({ upperBound: e.target.value })}
+            {...describe(`${id}-upper`, true, manifestErrors.upperBound)}
+          />
         </Labelled>
         <div className="space-y-2 pt-6 text-sm">
           <label className="flex items-center gap-2">
-            <input type="checkbox" className="h-4 w-4" checked={m.system} onChange={(e) => setM({ system: e.target.checked })} />
+            <input
+              type="checkbox"
+              className="h-4 w-4"
+              checked={m.system}
+              onChange={(e) => setM({ system: e.target.checked })}
+            />
             System variable (component of a nonlinear system)
           </label>
           <label className="flex items-center gap-2">
-            <input type="checkbox" className="h-4 w-4" checked={m.conservative} onChange={(e) => setM({ conservative: e.target.checked })} />
+            <input
+              type="checkbox"
+              className="h-4 w-4"
+              checked={m.conservative}
+              onChange={(e) => setM({ conservative: e.target.checked })}
+            />
             Conservative (check mass drift)
           </label>
         </div>
@@ -332,7 +502,10 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
       </div>
 
       {phase !== 'idle' ? (
-        <section aria-label="Upload progress" className="space-y-3 rounded-lg border border-slate-200 p-4 dark:border-slate-800">
+        <section
+          aria-label="Upload progress"
+          className="space-y-3 rounded-lg border border-slate-200 p-4 dark:border-slate-800"
+        >
           <div>
             <div className="flex justify-between text-sm">
               <span>File</span>
@@ -349,14 +522,27 @@ export function UploadForm({ workspace, projects, defaultBuild }: UploadFormProp
               aria-valuetext={`${percent} %, ${formatBytes(progress.sent)} of ${formatBytes(progress.total)}`}
               className="mt-1 h-2 w-full overflow-hidden rounded bg-slate-200 dark:bg-slate-800"
             >
-              <div className="h-full bg-sky-600 transition-[width] duration-200 dark:bg-sky-400" style={{ width: `${percent}%` }} />
+              <div
+                className="h-full bg-sky-600 transition-[width] duration-200 dark:bg-sky-400"
+                style={{ width: `${percent}%` }}
+              />
             </div>
           </div>
           <ol className="space-y-1 text-sm">
             {STEPS.map((s) => {
               const state = stepState(s.phase, phase, failedAt);
               return (
-                <li key={s.phase} data-state={state} className={state === 'todo' ? 'text-slate-400 dark:text-slate-500' : state === 'failed' ? 'text-verdict-fail dark:text-red-400' : ''}>
+                <li
+                  key={s.phase}
+                  data-state={state}
+                  className={
+                    state === 'todo'
+                      ? 'text-slate-400 dark:text-slate-500'
+                      : state === 'failed'
+                        ? 'text-verdict-fail dark:text-red-400'
+                        : ''
+                  }
+                >
                   <span aria-hidden className="inline-block w-5">
                     {stepMark[state]}
                   </span>

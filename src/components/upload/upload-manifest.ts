@@ -55,7 +55,8 @@ function optionsOf(values: ManifestFormValues, errors: ManifestFieldErrors): Var
   const upper = parseBound(values.upperBound);
   if (lower === 'invalid') errors.lowerBound = 'Enter a number, e.g. 0.';
   if (upper === 'invalid') errors.upperBound = 'Enter a number, e.g. 1.';
-  if (typeof lower === 'number' && typeof upper === 'number' && lower > upper) errors.upperBound = 'The upper bound must not be below the lower bound.';
+  if (typeof lower === 'number' && typeof upper === 'number' && lower > upper)
+    errors.upperBound = 'The upper bound must not be below the lower bound.';
   const bounds = { ...(typeof lower === 'number' ? { lower } : {}), ...(typeof upper === 'number' ? { upper } : {}) };
   if (Object.keys(bounds).length > 0) options.bounds = bounds;
   if (values.velocitySign !== '') options.velocitySign = values.velocitySign === '1' ? 1 : -1;
@@ -76,9 +77,13 @@ export function buildManifest(values: ManifestFormValues): { manifest?: IngestMa
   if (hasOptions && variables.length === 0) errors.variables = 'Name the variable(s) these options apply to.';
   if (Object.keys(errors).length > 0) return { errors };
   if (variables.length === 0) return { errors };
-  const candidate: IngestManifest = { variables, ...(hasOptions ? { variableOptions: Object.fromEntries(variables.map((v) => [v, options])) } : {}) };
+  const candidate: IngestManifest = {
+    variables,
+    ...(hasOptions ? { variableOptions: Object.fromEntries(variables.map((v) => [v, options])) } : {}),
+  };
   const checked = ingestManifestSchema.safeParse(candidate);
-  if (!checked.success) return { errors: { variables: checked.error.issues[0]?.message ?? 'These manifest options are not valid.' } };
+  if (!checked.success)
+    return { errors: { variables: checked.error.issues[0]?.message ?? 'These manifest options are not valid.' } };
   return { manifest: checked.data, errors };
 }
 

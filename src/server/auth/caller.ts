@@ -31,7 +31,8 @@ async function tokenCaller(header: string): Promise<TokenCaller> {
   const match = /^Bearer\s+(\S+)$/i.exec(header.trim());
   if (!match) throw new AppError('unauthorized:token', 'Authorization header must be `Bearer <token>`.');
   const token = match[1]!;
-  if (!looksLikeToken(token)) throw new AppError('unauthorized:token', 'This is not a Varigate token (they start with vgt_).');
+  if (!looksLikeToken(token))
+    throw new AppError('unauthorized:token', 'This is not a Varigate token (they start with vgt_).');
   const owner = await getTokenOwnerByHash({ secretHash: hashToken(token) });
   if (!owner) throw new AppError('unauthorized:token', 'Unknown or revoked token.');
   // Last-used is informative only; never fail a request over it.
@@ -69,7 +70,10 @@ function assertSameOrigin(request: Request): void {
 /** Routes that change who may do what (members, tokens, policies) are for people only. */
 export function requireUserCaller(caller: Caller): UserCaller {
   if (caller.kind !== 'user') {
-    throw new AppError('forbidden:token', 'CI tokens may upload and read only; this needs a signed-in person with the right role.');
+    throw new AppError(
+      'forbidden:token',
+      'CI tokens may upload and read only; this needs a signed-in person with the right role.',
+    );
   }
   return caller;
 }

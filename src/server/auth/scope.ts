@@ -37,9 +37,17 @@ export async function resolveProjectScope(
 ): Promise<ProjectScope> {
   if (caller.kind === 'token') {
     if (target.project !== undefined && target.project !== caller.projectSlug) {
-      throw new AppError('forbidden:project', `This token belongs to project "${caller.projectSlug}", not "${target.project}".`);
+      throw new AppError(
+        'forbidden:project',
+        `This token belongs to project "${caller.projectSlug}", not "${target.project}".`,
+      );
     }
-    return { workspaceId: caller.workspaceId, projectId: caller.projectId, projectSlug: caller.projectSlug, tokenId: caller.tokenId };
+    return {
+      workspaceId: caller.workspaceId,
+      projectId: caller.projectId,
+      projectSlug: caller.projectSlug,
+      tokenId: caller.tokenId,
+    };
   }
   if (!target.workspace || !target.project) {
     throw new AppError('invalid:scope', 'Name the `workspace` and `project` (their slugs).');
@@ -47,11 +55,19 @@ export async function resolveProjectScope(
   const membership = await getMembershipBySlug({ userId: caller.userId, slug: target.workspace });
   if (!membership) throw new AppError('not_found:workspace', `No workspace "${target.workspace}".`);
   if (!roleAtLeast(membership.role, role)) {
-    throw new AppError('forbidden:role', `This needs the ${role} role in "${target.workspace}"; you are ${membership.role}.`);
+    throw new AppError(
+      'forbidden:role',
+      `This needs the ${role} role in "${target.workspace}"; you are ${membership.role}.`,
+    );
   }
   const project = await getProjectBySlug({ workspaceId: membership.workspaceId, slug: target.project });
   if (!project) throw new AppError('not_found:project', `No project "${target.project}" in "${target.workspace}".`);
-  return { workspaceId: membership.workspaceId, projectId: project.id, projectSlug: project.slug, userId: caller.userId };
+  return {
+    workspaceId: membership.workspaceId,
+    projectId: project.id,
+    projectSlug: project.slug,
+    userId: caller.userId,
+  };
 }
 
 /** A run the caller may read; any run they may not see is a 404, exactly like a missing one. */

@@ -31,10 +31,16 @@ export interface MultipartUpload {
  * The file is spooled rather than streamed straight to S3 because a plain S3 PUT needs the
  * length up front, which a multipart part does not announce.
  */
-export async function readMultipartUpload(request: Request, { maxBytes }: { maxBytes: number }): Promise<MultipartUpload> {
+export async function readMultipartUpload(
+  request: Request,
+  { maxBytes }: { maxBytes: number },
+): Promise<MultipartUpload> {
   const contentType = request.headers.get('content-type') ?? '';
   if (!contentType.toLowerCase().startsWith('multipart/form-data')) {
-    throw new AppError('invalid:upload', 'Expected multipart/form-data with a `file` part, or JSON with an `objectKey`.');
+    throw new AppError(
+      'invalid:upload',
+      'Expected multipart/form-data with a `file` part, or JSON with an `objectKey`.',
+    );
   }
   if (!request.body) throw new AppError('invalid:upload', 'The request has no body.');
 
@@ -76,7 +82,13 @@ export async function readMultipartUpload(request: Request, { maxBytes }: { maxB
     stream.on('limit', () => {
       tooLarge = true;
     });
-    const spooled: SpooledFile = { path: target, fileName: info.filename || 'upload', contentType: info.mimeType, size: 0, sha256: '' };
+    const spooled: SpooledFile = {
+      path: target,
+      fileName: info.filename || 'upload',
+      contentType: info.mimeType,
+      size: 0,
+      sha256: '',
+    };
     file = spooled;
     pendingFiles.push(
       pipeline(stream, meter, createWriteStream(target)).then(() => {

@@ -4,20 +4,36 @@ import { transaction } from '@/db/client';
 import type { Policy } from '@/src/analysis';
 import { logger } from '../logger';
 import { refreshBuildVerdict } from '../queries/builds';
-import { getRunContext, getRunWorkspace, getUploadForRun, markRunAnalysing, replaceRunResults, type AnalysisResultRows, type RunContext } from '../queries/runs';
+import {
+  getRunContext,
+  getRunWorkspace,
+  getUploadForRun,
+  markRunAnalysing,
+  replaceRunResults,
+  type AnalysisResultRows,
+  type RunContext,
+} from '../queries/runs';
 import { PermanentJobError, type JobRow } from '../queue';
 import { queueAlertsForFinishedRun } from '../services/alerts';
-import { analyseSnapshots, effectivePolicy, errorRows, isInputError, judgeToRows, loadBaselineSummaries } from '../services/analysis';
+import {
+  analyseSnapshots,
+  effectivePolicy,
+  errorRows,
+  isInputError,
+  judgeToRows,
+  loadBaselineSummaries,
+} from '../services/analysis';
 import { withStoredSnapshots } from '../services/snapshots';
 
 const payloadSchema = z.object({ runId: z.uuid() });
-
 
 async function analyse(ctx: RunContext, policy: Policy): Promise<AnalysisResultRows> {
   const upload = await getUploadForRun({ workspaceId: ctx.run.workspaceId, runId: ctx.run.id });
   if (!upload) return errorRows('The run has no stored file.', policy);
   const stepDelayMs = Number(process.env.VARIGATE_ANALYSIS_STEP_DELAY_MS ?? 0) || undefined;
-  const summaries = await withStoredSnapshots(upload, ctx.run.manifest, (reader) => analyseSnapshots(reader, { policy, stepDelayMs }));
+  const summaries = await withStoredSnapshots(upload, ctx.run.manifest, (reader) =>
+    analyseSnapshots(reader, { policy, stepDelayMs }),
+  );
   const baseline = await loadBaselineSummaries({
     workspaceId: ctx.run.workspaceId,
     caseId: ctx.run.caseId,
@@ -64,6 +80,15 @@ export async function analyseRunJob(job: JobRow): Promise<void> {
     await replaceRunResults({ workspaceId, runId, result }, tx);
     await refreshBuildVerdict({ buildId: ctx.run.buildId }, tx);
     // Failure alerts: a failing run on the default branch queues its build's alert job (services/alerts.ts).
-    await queueAlertsForFinishedRun({ runId, buildId: ctx.run.buildId, verdict: result.verdict, branch: ctx.branch, defaultBranch: ctx.defaultBranch }, tx);
+    await queueAlertsForFinishedRun(
+      {
+        runId,
+        buildId: ctx.run.buildId,
+        verdict: result.verdict,
+        branch: ctx.branch,
+        defaultBranch: ctx.defaultBranch,
+      },
+      tx,
+    );
   });
 }

@@ -47,7 +47,15 @@ export interface AuditPage {
  * One page of a workspace's audit log, newest first. Paged by id (a keyset), so events written
  * while someone reads never shift or repeat rows between pages.
  */
-export async function listAuditEvents({ workspaceId, before, limit }: { workspaceId: string; before?: number; limit: number }): Promise<AuditPage> {
+export async function listAuditEvents({
+  workspaceId,
+  before,
+  limit,
+}: {
+  workspaceId: string;
+  before?: number;
+  limit: number;
+}): Promise<AuditPage> {
   const rows = await getDb()
     .select({
       id: auditEvents.id,
@@ -63,7 +71,11 @@ export async function listAuditEvents({ workspaceId, before, limit }: { workspac
     .from(auditEvents)
     .leftJoin(users, eq(users.id, auditEvents.actorUserId))
     .leftJoin(tokens, and(eq(tokens.id, auditEvents.actorTokenId), eq(tokens.workspaceId, workspaceId)))
-    .where(before === undefined ? eq(auditEvents.workspaceId, workspaceId) : and(eq(auditEvents.workspaceId, workspaceId), lt(auditEvents.id, before)))
+    .where(
+      before === undefined
+        ? eq(auditEvents.workspaceId, workspaceId)
+        : and(eq(auditEvents.workspaceId, workspaceId), lt(auditEvents.id, before)),
+    )
     .orderBy(desc(auditEvents.id))
     .limit(limit + 1);
   const events = rows.slice(0, limit);

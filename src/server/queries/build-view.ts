@@ -15,7 +15,13 @@ export interface BuildCaseRow {
 }
 
 /** The latest run of each case in a build, with its finding counts and worst finding. */
-export async function listBuildCases({ workspaceId, buildId }: { workspaceId: string; buildId: string }): Promise<BuildCaseRow[]> {
+export async function listBuildCases({
+  workspaceId,
+  buildId,
+}: {
+  workspaceId: string;
+  buildId: string;
+}): Promise<BuildCaseRow[]> {
   const rows = await getDb().execute<{
     run_id: string;
     case_name: string;
@@ -47,7 +53,17 @@ export async function listBuildCases({ workspaceId, buildId }: { workspaceId: st
 }
 
 /** The build of the same project and branch that started just before this one. */
-export async function getPreviousBuild({ workspaceId, projectId, branch, before }: { workspaceId: string; projectId: string; branch: string; before: Date }) {
+export async function getPreviousBuild({
+  workspaceId,
+  projectId,
+  branch,
+  before,
+}: {
+  workspaceId: string;
+  projectId: string;
+  branch: string;
+  before: Date;
+}) {
   const rows = await getDb().execute<{ id: string; key: string; verdict: string | null; started_at: string }>(sql`
     select id, key, verdict, started_at from builds
     where workspace_id = ${workspaceId} and project_id = ${projectId} and branch = ${branch} and started_at < ${before.toISOString()}::timestamptz

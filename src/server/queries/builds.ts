@@ -17,7 +17,15 @@ export async function getBuildByKey(
 
 /** The build with this CI key, created on first use. */
 export async function ensureBuild(
-  input: { workspaceId: string; projectId: string; key: string; commit: string; branch: string; ciUrl?: string | null; startedAt?: Date },
+  input: {
+    workspaceId: string;
+    projectId: string;
+    key: string;
+    commit: string;
+    branch: string;
+    ciUrl?: string | null;
+    startedAt?: Date;
+  },
   db: Executor = getDb(),
 ): Promise<Build> {
   await db
@@ -67,7 +75,13 @@ export interface BuildRunRow {
 }
 
 /** Runs of a build, latest run per case (a CI retry of a case supersedes the earlier one). */
-export async function listBuildRuns({ workspaceId, buildId }: { workspaceId: string; buildId: string }): Promise<BuildRunRow[]> {
+export async function listBuildRuns({
+  workspaceId,
+  buildId,
+}: {
+  workspaceId: string;
+  buildId: string;
+}): Promise<BuildRunRow[]> {
   return getDb()
     .selectDistinctOn([cases.name], {
       runId: runs.id,

@@ -32,7 +32,15 @@ const caseRunColumns = {
 };
 
 /** The case's most recent runs, newest first, with their build. */
-export async function listCaseRuns({ workspaceId, caseId, limit }: { workspaceId: string; caseId: string; limit: number }): Promise<CaseRunRow[]> {
+export async function listCaseRuns({
+  workspaceId,
+  caseId,
+  limit,
+}: {
+  workspaceId: string;
+  caseId: string;
+  limit: number;
+}): Promise<CaseRunRow[]> {
   return getDb()
     .select(caseRunColumns)
     .from(runs)
@@ -43,7 +51,13 @@ export async function listCaseRuns({ workspaceId, caseId, limit }: { workspaceId
 }
 
 /** The case's newest analysed run (status done): the one a policy change can be re-judged on. */
-export async function getLatestAnalysedRun({ workspaceId, caseId }: { workspaceId: string; caseId: string }): Promise<CaseRunRow | undefined> {
+export async function getLatestAnalysedRun({
+  workspaceId,
+  caseId,
+}: {
+  workspaceId: string;
+  caseId: string;
+}): Promise<CaseRunRow | undefined> {
   const rows = await getDb()
     .select(caseRunColumns)
     .from(runs)
@@ -65,7 +79,13 @@ export interface CaseBaselineRow {
 }
 
 /** The accepted baseline of each branch of a case, with the build it came from. */
-export async function listCaseBaselines({ workspaceId, caseId }: { workspaceId: string; caseId: string }): Promise<CaseBaselineRow[]> {
+export async function listCaseBaselines({
+  workspaceId,
+  caseId,
+}: {
+  workspaceId: string;
+  caseId: string;
+}): Promise<CaseBaselineRow[]> {
   return getDb()
     .select({
       branch: baselines.branch,
@@ -85,13 +105,25 @@ export async function listCaseBaselines({ workspaceId, caseId }: { workspaceId: 
 }
 
 /** Replaces a case's partial policy. */
-export async function updateCasePolicy({ workspaceId, caseId, policy }: { workspaceId: string; caseId: string; policy: unknown }, db: Executor = getDb()): Promise<void> {
-  await db.update(cases).set({ policy }).where(and(eq(cases.workspaceId, workspaceId), eq(cases.id, caseId)));
+export async function updateCasePolicy(
+  { workspaceId, caseId, policy }: { workspaceId: string; caseId: string; policy: unknown },
+  db: Executor = getDb(),
+): Promise<void> {
+  await db
+    .update(cases)
+    .set({ policy })
+    .where(and(eq(cases.workspaceId, workspaceId), eq(cases.id, caseId)));
 }
 
 /** Name, default branch and default (partial) policy of a project. */
 export async function updateProjectSettings(
-  { workspaceId, projectId, name, defaultBranch, defaultPolicy }: { workspaceId: string; projectId: string; name: string; defaultBranch: string; defaultPolicy: unknown },
+  {
+    workspaceId,
+    projectId,
+    name,
+    defaultBranch,
+    defaultPolicy,
+  }: { workspaceId: string; projectId: string; name: string; defaultBranch: string; defaultPolicy: unknown },
   db: Executor = getDb(),
 ): Promise<void> {
   await db
@@ -101,7 +133,13 @@ export async function updateProjectSettings(
 }
 
 /** Case names per project, for the upload form's suggestions. */
-export async function listCaseNames({ workspaceId, projectIds }: { workspaceId: string; projectIds: string[] }): Promise<{ projectId: string; name: string }[]> {
+export async function listCaseNames({
+  workspaceId,
+  projectIds,
+}: {
+  workspaceId: string;
+  projectIds: string[];
+}): Promise<{ projectId: string; name: string }[]> {
   if (projectIds.length === 0) return [];
   return getDb()
     .select({ projectId: cases.projectId, name: cases.name })

@@ -9,7 +9,17 @@ export interface DailyPassRate {
 }
 
 /** Finished builds per day on a branch over the last `days` days, and how many passed (pass or warn). */
-export async function listDailyPassRates({ workspaceId, projectId, branch, days }: { workspaceId: string; projectId: string; branch: string; days: number }): Promise<DailyPassRate[]> {
+export async function listDailyPassRates({
+  workspaceId,
+  projectId,
+  branch,
+  days,
+}: {
+  workspaceId: string;
+  projectId: string;
+  branch: string;
+  days: number;
+}): Promise<DailyPassRate[]> {
   const rows = await getDb().execute<{ day: string; builds: number; passed: number }>(sql`
     select to_char(date_trunc('day', started_at), 'YYYY-MM-DD') as day, count(*)::int as builds,
       count(*) filter (where verdict in ('pass', 'warn'))::int as passed
@@ -30,8 +40,26 @@ export interface ProjectBuildRow {
   casesFailing: number;
 }
 
-export async function listProjectBuilds({ workspaceId, projectId, limit, offset }: { workspaceId: string; projectId: string; limit: number; offset: number }): Promise<ProjectBuildRow[]> {
-  const rows = await getDb().execute<{ key: string; branch: string; commit: string; verdict: string | null; started_at: string; total: number; failing: number }>(sql`
+export async function listProjectBuilds({
+  workspaceId,
+  projectId,
+  limit,
+  offset,
+}: {
+  workspaceId: string;
+  projectId: string;
+  limit: number;
+  offset: number;
+}): Promise<ProjectBuildRow[]> {
+  const rows = await getDb().execute<{
+    key: string;
+    branch: string;
+    commit: string;
+    verdict: string | null;
+    started_at: string;
+    total: number;
+    failing: number;
+  }>(sql`
     select b.key, b.branch, b.commit, b.verdict, b.started_at, coalesce(c.total, 0)::int as total, coalesce(c.failing, 0)::int as failing
     from builds b
     left join lateral (
@@ -40,7 +68,15 @@ export async function listProjectBuilds({ workspaceId, projectId, limit, offset 
     ) c on true
     where b.workspace_id = ${workspaceId} and b.project_id = ${projectId}
     order by b.started_at desc, b.id desc limit ${limit} offset ${offset}`);
-  return rows.map((r) => ({ key: r.key, branch: r.branch, commit: r.commit, verdict: r.verdict, startedAt: new Date(r.started_at), casesTotal: r.total, casesFailing: r.failing }));
+  return rows.map((r) => ({
+    key: r.key,
+    branch: r.branch,
+    commit: r.commit,
+    verdict: r.verdict,
+    startedAt: new Date(r.started_at),
+    casesTotal: r.total,
+    casesFailing: r.failing,
+  }));
 }
 
 export interface CaseStateRow {
@@ -61,7 +97,15 @@ export interface CaseStateRow {
  * since which build it has had that verdict — for a failing case, the build where it started to
  * fail.
  */
-export async function listCaseStates({ workspaceId, projectId, branch }: { workspaceId: string; projectId: string; branch: string }): Promise<CaseStateRow[]> {
+export async function listCaseStates({
+  workspaceId,
+  projectId,
+  branch,
+}: {
+  workspaceId: string;
+  projectId: string;
+  branch: string;
+}): Promise<CaseStateRow[]> {
   const rows = await getDb().execute<{
     case_name: string;
     verdict: string | null;

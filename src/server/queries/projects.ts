@@ -3,7 +3,13 @@ import { and, asc, eq } from 'drizzle-orm';
 import { getDb, type Executor } from '@/db/client';
 import { baselines, cases, projects, workspaces, type Case, type Project } from '@/db/schema';
 
-export async function getProjectBySlug({ workspaceId, slug }: { workspaceId: string; slug: string }): Promise<Project | undefined> {
+export async function getProjectBySlug({
+  workspaceId,
+  slug,
+}: {
+  workspaceId: string;
+  slug: string;
+}): Promise<Project | undefined> {
   const rows = await getDb()
     .select()
     .from(projects)
@@ -12,7 +18,13 @@ export async function getProjectBySlug({ workspaceId, slug }: { workspaceId: str
   return rows[0];
 }
 
-export async function getProjectById({ workspaceId, id }: { workspaceId: string; id: string }): Promise<Project | undefined> {
+export async function getProjectById({
+  workspaceId,
+  id,
+}: {
+  workspaceId: string;
+  id: string;
+}): Promise<Project | undefined> {
   const rows = await getDb()
     .select()
     .from(projects)
@@ -51,7 +63,10 @@ export async function ensureCase(
   { workspaceId, projectId, name }: { workspaceId: string; projectId: string; name: string },
   db: Executor = getDb(),
 ): Promise<Case> {
-  await db.insert(cases).values({ workspaceId, projectId, name }).onConflictDoNothing({ target: [cases.projectId, cases.name] });
+  await db
+    .insert(cases)
+    .values({ workspaceId, projectId, name })
+    .onConflictDoNothing({ target: [cases.projectId, cases.name] });
   const [row] = await db
     .select()
     .from(cases)
@@ -76,8 +91,19 @@ export async function getCaseByName({
   return rows[0];
 }
 
-export async function setCasePolicy({ workspaceId, id, policy }: { workspaceId: string; id: string; policy: unknown }): Promise<void> {
-  await getDb().update(cases).set({ policy }).where(and(eq(cases.workspaceId, workspaceId), eq(cases.id, id)));
+export async function setCasePolicy({
+  workspaceId,
+  id,
+  policy,
+}: {
+  workspaceId: string;
+  id: string;
+  policy: unknown;
+}): Promise<void> {
+  await getDb()
+    .update(cases)
+    .set({ policy })
+    .where(and(eq(cases.workspaceId, workspaceId), eq(cases.id, id)));
 }
 
 /** The accepted run of a case on a branch, if any. */
@@ -99,15 +125,32 @@ export async function getBaseline({
 }
 
 export async function upsertBaseline(
-  input: { workspaceId: string; caseId: string; branch: string; runId: string; acceptedBy?: string | null; acceptedByToken?: string | null },
+  input: {
+    workspaceId: string;
+    caseId: string;
+    branch: string;
+    runId: string;
+    acceptedBy?: string | null;
+    acceptedByToken?: string | null;
+  },
   db: Executor = getDb(),
 ): Promise<void> {
-  const values = { ...input, acceptedBy: input.acceptedBy ?? null, acceptedByToken: input.acceptedByToken ?? null, acceptedAt: new Date() };
+  const values = {
+    ...input,
+    acceptedBy: input.acceptedBy ?? null,
+    acceptedByToken: input.acceptedByToken ?? null,
+    acceptedAt: new Date(),
+  };
   await db
     .insert(baselines)
     .values(values)
     .onConflictDoUpdate({
       target: [baselines.caseId, baselines.branch],
-      set: { runId: values.runId, acceptedBy: values.acceptedBy, acceptedByToken: values.acceptedByToken, acceptedAt: values.acceptedAt },
+      set: {
+        runId: values.runId,
+        acceptedBy: values.acceptedBy,
+        acceptedByToken: values.acceptedByToken,
+        acceptedAt: values.acceptedAt,
+      },
     });
 }

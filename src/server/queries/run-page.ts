@@ -13,7 +13,13 @@ import { getRunContext, type RunContext } from './runs';
 export type RunPageRow = RunContext & { caseId: string };
 
 /** A run with its case, project and build, scoped to a workspace. */
-export async function getRunPageRow({ workspaceId, id }: { workspaceId: string; id: string }): Promise<RunPageRow | undefined> {
+export async function getRunPageRow({
+  workspaceId,
+  id,
+}: {
+  workspaceId: string;
+  id: string;
+}): Promise<RunPageRow | undefined> {
   const ctx = await getRunContext({ workspaceId, id });
   return ctx ? { ...ctx, caseId: ctx.run.caseId } : undefined;
 }

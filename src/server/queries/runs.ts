@@ -2,7 +2,19 @@ import 'server-only';
 import { and, asc, desc, eq } from 'drizzle-orm';
 import { getDb, type Executor } from '@/db/client';
 import { worstFindingOrder } from './finding-order';
-import { builds, cases, findings, projects, runs, uploads, variables, type Finding, type Run, type Upload, type Variable } from '@/db/schema';
+import {
+  builds,
+  cases,
+  findings,
+  projects,
+  runs,
+  uploads,
+  variables,
+  type Finding,
+  type Run,
+  type Upload,
+  type Variable,
+} from '@/db/schema';
 
 export async function insertRun(
   input: {
@@ -69,7 +81,13 @@ export interface RunContext {
 }
 
 /** A run with the names and policies around it, scoped to a workspace. */
-export async function getRunContext({ workspaceId, id }: { workspaceId: string; id: string }): Promise<RunContext | undefined> {
+export async function getRunContext({
+  workspaceId,
+  id,
+}: {
+  workspaceId: string;
+  id: string;
+}): Promise<RunContext | undefined> {
   const rows = await getDb()
     .select({
       run: runs,
@@ -97,8 +115,16 @@ export async function getRunContext({ workspaceId, id }: { workspaceId: string; 
  * Where a run belongs, without scoping: for the worker (which serves every workspace) and for
  * the access check that decides whether a caller may see the run at all.
  */
-export async function getRunProject({ id }: { id: string }): Promise<{ workspaceId: string; projectId: string } | undefined> {
-  const rows = await getDb().select({ workspaceId: runs.workspaceId, projectId: runs.projectId }).from(runs).where(eq(runs.id, id)).limit(1);
+export async function getRunProject({
+  id,
+}: {
+  id: string;
+}): Promise<{ workspaceId: string; projectId: string } | undefined> {
+  const rows = await getDb()
+    .select({ workspaceId: runs.workspaceId, projectId: runs.projectId })
+    .from(runs)
+    .where(eq(runs.id, id))
+    .limit(1);
   return rows[0];
 }
 
@@ -108,7 +134,13 @@ export async function getRunWorkspace({ id }: { id: string }): Promise<string | 
   return rows[0]?.workspaceId;
 }
 
-export async function getUploadForRun({ workspaceId, runId }: { workspaceId: string; runId: string }): Promise<Upload | undefined> {
+export async function getUploadForRun({
+  workspaceId,
+  runId,
+}: {
+  workspaceId: string;
+  runId: string;
+}): Promise<Upload | undefined> {
   const rows = await getDb()
     .select()
     .from(uploads)
@@ -118,7 +150,13 @@ export async function getUploadForRun({ workspaceId, runId }: { workspaceId: str
   return rows[0];
 }
 
-export async function listRunVariables({ workspaceId, runId }: { workspaceId: string; runId: string }): Promise<Variable[]> {
+export async function listRunVariables({
+  workspaceId,
+  runId,
+}: {
+  workspaceId: string;
+  runId: string;
+}): Promise<Variable[]> {
   return getDb()
     .select()
     .from(variables)
@@ -126,7 +164,13 @@ export async function listRunVariables({ workspaceId, runId }: { workspaceId: st
     .orderBy(asc(variables.name));
 }
 
-export async function listRunFindings({ workspaceId, runId }: { workspaceId: string; runId: string }): Promise<Finding[]> {
+export async function listRunFindings({
+  workspaceId,
+  runId,
+}: {
+  workspaceId: string;
+  runId: string;
+}): Promise<Finding[]> {
   return getDb()
     .select()
     .from(findings)

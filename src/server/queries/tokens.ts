@@ -13,7 +13,12 @@ export interface TokenOwner {
 /** The live (not revoked) token with this hash, and the project it belongs to. */
 export async function getTokenOwnerByHash({ secretHash }: { secretHash: string }): Promise<TokenOwner | undefined> {
   const rows = await getDb()
-    .select({ tokenId: tokens.id, projectId: tokens.projectId, workspaceId: tokens.workspaceId, projectSlug: projects.slug })
+    .select({
+      tokenId: tokens.id,
+      projectId: tokens.projectId,
+      workspaceId: tokens.workspaceId,
+      projectSlug: projects.slug,
+    })
     .from(tokens)
     .innerJoin(projects, eq(projects.id, tokens.projectId))
     .where(and(eq(tokens.secretHash, secretHash), isNull(tokens.revokedAt)))
@@ -25,14 +30,17 @@ export async function touchToken({ tokenId }: { tokenId: string }): Promise<void
   await getDb().update(tokens).set({ lastUsedAt: new Date() }).where(eq(tokens.id, tokenId));
 }
 
-export async function insertToken(input: {
-  workspaceId: string;
-  projectId: string;
-  name: string;
-  prefix: string;
-  secretHash: string;
-  createdBy?: string | null;
-}, db: Executor = getDb()): Promise<{ id: string }> {
+export async function insertToken(
+  input: {
+    workspaceId: string;
+    projectId: string;
+    name: string;
+    prefix: string;
+    secretHash: string;
+    createdBy?: string | null;
+  },
+  db: Executor = getDb(),
+): Promise<{ id: string }> {
   const [row] = await db
     .insert(tokens)
     .values({ ...input, createdBy: input.createdBy ?? null })
@@ -40,7 +48,10 @@ export async function insertToken(input: {
   return row!;
 }
 
-export async function revokeToken({ id, workspaceId }: { id: string; workspaceId: string }, db: Executor = getDb()): Promise<boolean> {
+export async function revokeToken(
+  { id, workspaceId }: { id: string; workspaceId: string },
+  db: Executor = getDb(),
+): Promise<boolean> {
   const rows = await db
     .update(tokens)
     .set({ revokedAt: new Date() })
@@ -85,7 +96,13 @@ export async function listTokens({ workspaceId }: { workspaceId: string }): Prom
 
 export async function getTokenById({ workspaceId, id }: { workspaceId: string; id: string }, db: Executor = getDb()) {
   const rows = await db
-    .select({ id: tokens.id, name: tokens.name, prefix: tokens.prefix, projectId: tokens.projectId, revokedAt: tokens.revokedAt })
+    .select({
+      id: tokens.id,
+      name: tokens.name,
+      prefix: tokens.prefix,
+      projectId: tokens.projectId,
+      revokedAt: tokens.revokedAt,
+    })
     .from(tokens)
     .where(and(eq(tokens.workspaceId, workspaceId), eq(tokens.id, id)))
     .limit(1);

@@ -2,13 +2,26 @@ import 'server-only';
 import { and, asc, count, eq, gt, isNull, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { getDb, type Executor } from '@/db/client';
-import { invitations, memberships, signInAttempts, signInTokens, users, workspaces, type Invitation, type User } from '@/db/schema';
+import {
+  invitations,
+  memberships,
+  signInAttempts,
+  signInTokens,
+  users,
+  workspaces,
+  type Invitation,
+  type User,
+} from '@/db/schema';
 import type { Role } from '../auth/roles';
 
 export const normaliseEmail = (email: string): string => email.trim().toLowerCase();
 
 export async function getUserByEmail({ email }: { email: string }): Promise<User | undefined> {
-  const rows = await getDb().select().from(users).where(eq(users.email, normaliseEmail(email))).limit(1);
+  const rows = await getDb()
+    .select()
+    .from(users)
+    .where(eq(users.email, normaliseEmail(email)))
+    .limit(1);
   return rows[0];
 }
 
@@ -33,8 +46,14 @@ export async function insertUser(
   return row!;
 }
 
-export async function setUserPassword({ id, passwordHash }: { id: string; passwordHash: string }, db: Executor = getDb()): Promise<void> {
-  await db.update(users).set({ passwordHash, emailVerifiedAt: sql`coalesce(${users.emailVerifiedAt}, now())` }).where(eq(users.id, id));
+export async function setUserPassword(
+  { id, passwordHash }: { id: string; passwordHash: string },
+  db: Executor = getDb(),
+): Promise<void> {
+  await db
+    .update(users)
+    .set({ passwordHash, emailVerifiedAt: sql`coalesce(${users.emailVerifiedAt}, now())` })
+    .where(eq(users.id, id));
 }
 
 export interface WorkspaceMembership {
@@ -53,7 +72,13 @@ export async function listUserWorkspaces({ userId }: { userId: string }): Promis
     .orderBy(asc(workspaces.name));
 }
 
-export async function getMembershipBySlug({ userId, slug }: { userId: string; slug: string }): Promise<WorkspaceMembership | undefined> {
+export async function getMembershipBySlug({
+  userId,
+  slug,
+}: {
+  userId: string;
+  slug: string;
+}): Promise<WorkspaceMembership | undefined> {
   const rows = await getDb()
     .select({ workspaceId: workspaces.id, slug: workspaces.slug, name: workspaces.name, role: memberships.role })
     .from(memberships)
@@ -96,7 +121,13 @@ export interface MemberRow {
 
 export async function listMembers({ workspaceId }: { workspaceId: string }): Promise<MemberRow[]> {
   return getDb()
-    .select({ userId: users.id, email: users.email, name: users.name, role: memberships.role, joinedAt: memberships.createdAt })
+    .select({
+      userId: users.id,
+      email: users.email,
+      name: users.name,
+      role: memberships.role,
+      joinedAt: memberships.createdAt,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.workspaceId, workspaceId))
@@ -111,7 +142,10 @@ export async function countAdmins({ workspaceId }: { workspaceId: string }, db: 
   return row?.n ?? 0;
 }
 
-export async function deleteMembership({ workspaceId, userId }: { workspaceId: string; userId: string }, db: Executor = getDb()): Promise<boolean> {
+export async function deleteMembership(
+  { workspaceId, userId }: { workspaceId: string; userId: string },
+  db: Executor = getDb(),
+): Promise<boolean> {
   const rows = await db
     .delete(memberships)
     .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
@@ -124,13 +158,26 @@ export async function deleteMembership({ workspaceId, userId }: { workspaceId: s
  * takes this lock first, so two concurrent changes cannot both see "another admin is left".
  */
 export async function lockWorkspaceMembers({ workspaceId }: { workspaceId: string }, db: Executor): Promise<boolean> {
-  const rows = await db.select({ id: workspaces.id }).from(workspaces).where(eq(workspaces.id, workspaceId)).for('update');
+  const rows = await db
+    .select({ id: workspaces.id })
+    .from(workspaces)
+    .where(eq(workspaces.id, workspaceId))
+    .for('update');
   return rows.length > 0;
 }
 
-export async function getMember({ workspaceId, userId }: { workspaceId: string; userId: string }, db: Executor = getDb()): Promise<MemberRow | undefined> {
+export async function getMember(
+  { workspaceId, userId }: { workspaceId: string; userId: string },
+  db: Executor = getDb(),
+): Promise<MemberRow | undefined> {
   const rows = await db
-    .select({ userId: users.id, email: users.email, name: users.name, role: memberships.role, joinedAt: memberships.createdAt })
+    .select({
+      userId: users.id,
+      email: users.email,
+      name: users.name,
+      role: memberships.role,
+      joinedAt: memberships.createdAt,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
@@ -138,7 +185,10 @@ export async function getMember({ workspaceId, userId }: { workspaceId: string; 
   return rows[0];
 }
 
-export async function setMemberRole({ workspaceId, userId, role }: { workspaceId: string; userId: string; role: Role }, db: Executor = getDb()): Promise<boolean> {
+export async function setMemberRole(
+  { workspaceId, userId, role }: { workspaceId: string; userId: string; role: Role },
+  db: Executor = getDb(),
+): Promise<boolean> {
   const rows = await db
     .update(memberships)
     .set({ role })
@@ -149,23 +199,46 @@ export async function setMemberRole({ workspaceId, userId, role }: { workspaceId
 
 // ------------------------------------------------------------------ one-time links
 
-export async function insertSignInToken(input: { email: string; userId: string | null; purpose: 'sign-in' | 'reset'; tokenHash: string; expiresAt: Date }): Promise<void> {
+export async function insertSignInToken(input: {
+  email: string;
+  userId: string | null;
+  purpose: 'sign-in' | 'reset';
+  tokenHash: string;
+  expiresAt: Date;
+}): Promise<void> {
   await getDb().insert(signInTokens).values(input);
 }
 
 /** Marks a live token used and returns it; undefined when unknown, used or expired. Atomic. */
-export async function consumeSignInToken({ tokenHash, purpose }: { tokenHash: string; purpose: 'sign-in' | 'reset' }, db: Executor = getDb()) {
+export async function consumeSignInToken(
+  { tokenHash, purpose }: { tokenHash: string; purpose: 'sign-in' | 'reset' },
+  db: Executor = getDb(),
+) {
   const rows = await db
     .update(signInTokens)
     .set({ usedAt: new Date() })
-    .where(and(eq(signInTokens.tokenHash, tokenHash), eq(signInTokens.purpose, purpose), isNull(signInTokens.usedAt), gt(signInTokens.expiresAt, new Date())))
+    .where(
+      and(
+        eq(signInTokens.tokenHash, tokenHash),
+        eq(signInTokens.purpose, purpose),
+        isNull(signInTokens.usedAt),
+        gt(signInTokens.expiresAt, new Date()),
+      ),
+    )
     .returning();
   return rows[0];
 }
 
 // ------------------------------------------------------------------ invitations
 
-export async function insertInvitation(input: { workspaceId: string; email: string; role: Role; tokenHash: string; invitedBy: string | null; expiresAt: Date }): Promise<Invitation> {
+export async function insertInvitation(input: {
+  workspaceId: string;
+  email: string;
+  role: Role;
+  tokenHash: string;
+  invitedBy: string | null;
+  expiresAt: Date;
+}): Promise<Invitation> {
   const [row] = await getDb()
     .insert(invitations)
     .values({ ...input, email: normaliseEmail(input.email) })
@@ -178,7 +251,14 @@ export async function getLiveInvitationByHash({ tokenHash }: { tokenHash: string
     .select({ invitation: invitations, workspaceSlug: workspaces.slug, workspaceName: workspaces.name })
     .from(invitations)
     .innerJoin(workspaces, eq(workspaces.id, invitations.workspaceId))
-    .where(and(eq(invitations.tokenHash, tokenHash), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(
+      and(
+        eq(invitations.tokenHash, tokenHash),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
     .limit(1);
   return rows[0];
 }
@@ -188,7 +268,14 @@ export async function markInvitationAccepted({ id }: { id: string }, db: Executo
   const rows = await db
     .update(invitations)
     .set({ acceptedAt: new Date() })
-    .where(and(eq(invitations.id, id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(
+      and(
+        eq(invitations.id, id),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
     .returning({ id: invitations.id });
   return rows.length > 0;
 }
@@ -197,15 +284,32 @@ export async function listPendingInvitations({ workspaceId }: { workspaceId: str
   return getDb()
     .select()
     .from(invitations)
-    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
     .orderBy(asc(invitations.createdAt));
 }
 
-export async function revokeInvitation({ workspaceId, id }: { workspaceId: string; id: string }, db: Executor = getDb()): Promise<boolean> {
+export async function revokeInvitation(
+  { workspaceId, id }: { workspaceId: string; id: string },
+  db: Executor = getDb(),
+): Promise<boolean> {
   const rows = await db
     .update(invitations)
     .set({ revokedAt: new Date() })
-    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.id, id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        eq(invitations.id, id),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
     .returning({ id: invitations.id });
   return rows.length > 0;
 }
@@ -222,7 +326,11 @@ export interface PendingInvitationRow {
 const inviter = alias(users, 'inviter');
 
 /** Live invitations of a workspace with who sent them, oldest first. */
-export async function listPendingInvitationRows({ workspaceId }: { workspaceId: string }): Promise<PendingInvitationRow[]> {
+export async function listPendingInvitationRows({
+  workspaceId,
+}: {
+  workspaceId: string;
+}): Promise<PendingInvitationRow[]> {
   return getDb()
     .select({
       id: invitations.id,
@@ -234,11 +342,21 @@ export async function listPendingInvitationRows({ workspaceId }: { workspaceId: 
     })
     .from(invitations)
     .leftJoin(inviter, eq(inviter.id, invitations.invitedBy))
-    .where(and(eq(invitations.workspaceId, workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
     .orderBy(asc(invitations.createdAt));
 }
 
-export async function getInvitationById({ workspaceId, id }: { workspaceId: string; id: string }, db: Executor = getDb()): Promise<Invitation | undefined> {
+export async function getInvitationById(
+  { workspaceId, id }: { workspaceId: string; id: string },
+  db: Executor = getDb(),
+): Promise<Invitation | undefined> {
   const rows = await db
     .select()
     .from(invitations)
@@ -248,11 +366,21 @@ export async function getInvitationById({ workspaceId, id }: { workspaceId: stri
 }
 
 /** Revokes the unused invitations of one address (a new invitation replaces them); their ids. */
-export async function revokePendingInvitationsFor({ workspaceId, email }: { workspaceId: string; email: string }, db: Executor = getDb()): Promise<string[]> {
+export async function revokePendingInvitationsFor(
+  { workspaceId, email }: { workspaceId: string; email: string },
+  db: Executor = getDb(),
+): Promise<string[]> {
   const rows = await db
     .update(invitations)
     .set({ revokedAt: new Date() })
-    .where(and(eq(invitations.workspaceId, workspaceId), eq(invitations.email, normaliseEmail(email)), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+    .where(
+      and(
+        eq(invitations.workspaceId, workspaceId),
+        eq(invitations.email, normaliseEmail(email)),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
     .returning({ id: invitations.id });
   return rows.map((r) => r.id);
 }
@@ -260,11 +388,21 @@ export async function revokePendingInvitationsFor({ workspaceId, email }: { work
 // ------------------------------------------------------------------ rate limiting
 
 export async function recordSignInAttempt(input: { email: string; ip: string; succeeded: boolean }): Promise<void> {
-  await getDb().insert(signInAttempts).values({ ...input, email: normaliseEmail(input.email) });
+  await getDb()
+    .insert(signInAttempts)
+    .values({ ...input, email: normaliseEmail(input.email) });
 }
 
 /** Failed attempts since `since`, for this account and for this address. */
-export async function countFailedAttempts({ email, ip, since }: { email: string; ip: string; since: Date }): Promise<{ byEmail: number; byIp: number }> {
+export async function countFailedAttempts({
+  email,
+  ip,
+  since,
+}: {
+  email: string;
+  ip: string;
+  since: Date;
+}): Promise<{ byEmail: number; byIp: number }> {
   const [row] = await getDb()
     .select({
       byEmail: sql<number>`count(*) filter (where ${signInAttempts.email} = ${normaliseEmail(email)})::int`,

@@ -45,7 +45,13 @@ export async function requestSignInLink(rawEmail: string): Promise<void> {
   const user = await getUserByEmail({ email });
   if (!user || (await linksRecentlySent(email)) >= MAX_LINKS_PER_WINDOW) return;
   const { secret, hash } = newLinkSecret();
-  await insertSignInToken({ email, userId: user.id, purpose: 'sign-in', tokenHash: hash, expiresAt: new Date(Date.now() + SIGN_IN_LINK_TTL_MS) });
+  await insertSignInToken({
+    email,
+    userId: user.id,
+    purpose: 'sign-in',
+    tokenHash: hash,
+    expiresAt: new Date(Date.now() + SIGN_IN_LINK_TTL_MS),
+  });
   await sendSignInLink(email, secret);
 }
 
@@ -54,7 +60,13 @@ export async function requestPasswordReset(rawEmail: string): Promise<void> {
   const user = await getUserByEmail({ email });
   if (!user || (await linksRecentlySent(email)) >= MAX_LINKS_PER_WINDOW) return;
   const { secret, hash } = newLinkSecret();
-  await insertSignInToken({ email, userId: user.id, purpose: 'reset', tokenHash: hash, expiresAt: new Date(Date.now() + RESET_LINK_TTL_MS) });
+  await insertSignInToken({
+    email,
+    userId: user.id,
+    purpose: 'reset',
+    tokenHash: hash,
+    expiresAt: new Date(Date.now() + RESET_LINK_TTL_MS),
+  });
   await sendPasswordReset(email, secret);
 }
 
@@ -63,7 +75,8 @@ export async function resetPassword(secret: string, password: string): Promise<{
   if (!LINK_SECRET_PATTERN.test(secret)) throw new AppError('invalid:link', 'This reset link is not valid.');
   return transaction(async (tx) => {
     const token = await consumeSignInToken({ tokenHash: hashLinkSecret(secret), purpose: 'reset' }, tx);
-    if (!token?.userId) throw new AppError('invalid:link', 'This reset link has expired or was already used; ask for a new one.');
+    if (!token?.userId)
+      throw new AppError('invalid:link', 'This reset link has expired or was already used; ask for a new one.');
     const problem = passwordProblem(password, token.email);
     if (problem) throw new AppError('invalid:password', problem);
     await setUserPassword({ id: token.userId, passwordHash: await hashPassword(password) }, tx);
@@ -71,7 +84,13 @@ export async function resetPassword(secret: string, password: string): Promise<{
   });
 }
 
-export async function inviteMember(input: { workspaceId: string; workspaceName: string; email: string; role: Role; invitedBy: { id: string; email: string } }): Promise<{ id: string }> {
+export async function inviteMember(input: {
+  workspaceId: string;
+  workspaceName: string;
+  email: string;
+  role: Role;
+  invitedBy: { id: string; email: string };
+}): Promise<{ id: string }> {
   const { secret, hash } = newLinkSecret();
   const invitation = await insertInvitation({
     workspaceId: input.workspaceId,
@@ -89,7 +108,14 @@ export async function inviteMember(input: { workspaceId: string; workspaceName: 
     targetId: invitation.id,
     details: { email: invitation.email, role: input.role },
   });
-  await sendInvitation({ to: invitation.email, secret, workspaceId: input.workspaceId, workspaceName: input.workspaceName, role: input.role, invitedBy: input.invitedBy.email });
+  await sendInvitation({
+    to: invitation.email,
+    secret,
+    workspaceId: input.workspaceId,
+    workspaceName: input.workspaceName,
+    role: input.role,
+    invitedBy: input.invitedBy.email,
+  });
   return { id: invitation.id };
 }
 
@@ -110,13 +136,19 @@ export async function acceptInvitation(
   if (!found) throw new AppError('invalid:invitation', 'This invitation has expired, was revoked or was already used.');
   const { invitation, workspaceSlug } = found;
   if ('userId' in who && who.email !== invitation.email) {
-    throw new AppError('forbidden:invitation', `This invitation is for ${invitation.email}; you are signed in as ${who.email}.`);
+    throw new AppError(
+      'forbidden:invitation',
+      `This invitation is for ${invitation.email}; you are signed in as ${who.email}.`,
+    );
   }
   if ('newAccount' in who) {
     const problem = passwordProblem(who.newAccount.password, invitation.email);
     if (problem) throw new AppError('invalid:password', problem);
     if (await getUserByEmail({ email: invitation.email })) {
-      throw new AppError('conflict:account', `An account for ${invitation.email} exists already: sign in, then open the invitation again.`);
+      throw new AppError(
+        'conflict:account',
+        `An account for ${invitation.email} exists already: sign in, then open the invitation again.`,
+      );
     }
   }
   const passwordHash = 'newAccount' in who ? await hashPassword(who.newAccount.password) : null;
@@ -127,13 +159,25 @@ export async function acceptInvitation(
     const userId =
       'userId' in who
         ? who.userId
-        : (await insertUser({ email: invitation.email, name: who.newAccount.name, passwordHash, emailVerified: true }, tx)).id;
+        : (
+            await insertUser(
+              { email: invitation.email, name: who.newAccount.name, passwordHash, emailVerified: true },
+              tx,
+            )
+          ).id;
     // Someone who joined meanwhile keeps the role they have: an old link never demotes anyone.
     if (!(await getMembershipById({ userId, workspaceId: invitation.workspaceId }, tx))) {
       await upsertMembership({ workspaceId: invitation.workspaceId, userId, role: invitation.role }, tx);
     }
     await insertAuditEvent(
-      { workspaceId: invitation.workspaceId, actorUserId: userId, action: 'member.join', targetType: 'user', targetId: userId, details: { role: invitation.role } },
+      {
+        workspaceId: invitation.workspaceId,
+        actorUserId: userId,
+        action: 'member.join',
+        targetType: 'user',
+        targetId: userId,
+        details: { role: invitation.role },
+      },
       tx,
     );
   });

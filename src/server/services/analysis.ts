@@ -1,6 +1,13 @@
 import 'server-only';
 import { ZodError } from 'zod';
-import { createAnalyser, judge, type Analyser, type Finding as AnalysisFinding, type Policy, type VariableSummary } from '@/src/analysis';
+import {
+  createAnalyser,
+  judge,
+  type Analyser,
+  type Finding as AnalysisFinding,
+  type Policy,
+  type VariableSummary,
+} from '@/src/analysis';
 import { parsePolicy } from '@/src/analysis/policy';
 import type { Precision } from '@/src/analysis/types';
 import { isReadError, type SnapshotReader } from '@/src/ingest';
@@ -26,7 +33,9 @@ export function effectivePolicy(projectPolicy: unknown, casePolicy: unknown): Po
   } catch (err) {
     if (err instanceof ZodError) {
       const first = err.issues[0];
-      throw new InputError(`The case's policy is invalid (${first ? `${first.path.join('.')}: ${first.message}` : 'unknown field'}); fix it on the policy page.`);
+      throw new InputError(
+        `The case's policy is invalid (${first ? `${first.path.join('.')}: ${first.message}` : 'unknown field'}); fix it on the policy page.`,
+      );
     }
     throw err;
   }
@@ -42,7 +51,10 @@ export interface AnalyseOptions {
 export async function analyseSnapshots(reader: SnapshotReader, options: AnalyseOptions): Promise<VariableSummary[]> {
   const { header } = reader;
   const analysers: Analyser[] = header.variables.map((v) =>
-    createAnalyser({ name: v.name, grid: header.grid, precision: v.precision, options: v.options }, { policy: options.policy }),
+    createAnalyser(
+      { name: v.name, grid: header.grid, precision: v.precision, options: v.options },
+      { policy: options.policy },
+    ),
   );
   let steps = 0;
   for await (const step of reader.steps) {
@@ -53,7 +65,8 @@ export async function analyseSnapshots(reader: SnapshotReader, options: AnalyseO
         analyser.push({ index: step.index, time: step.time, values }, step.significantDigits?.[analyser.variable]);
       } catch (err) {
         // The analyser's own checks (cell count, increasing step numbers) are input problems.
-        if (err instanceof RangeError) throw new InputError(`Step ${step.index}, variable "${analyser.variable}": ${err.message}`);
+        if (err instanceof RangeError)
+          throw new InputError(`Step ${step.index}, variable "${analyser.variable}": ${err.message}`);
         throw err;
       }
     }
@@ -80,7 +93,12 @@ export function toVariableRow(s: VariableSummary) {
 
 /** Rebuilds an analyser summary from a stored variable row, for re-judging and baselines. */
 export function fromVariableRow(v: Pick<Variable, 'summary' | 'series'>): VariableSummary {
-  return { ...(v.summary as Omit<VariableSummary, 'series' | 'findings' | 'verdict'>), series: v.series, findings: [], verdict: 'pass' } as VariableSummary;
+  return {
+    ...(v.summary as Omit<VariableSummary, 'series' | 'findings' | 'verdict'>),
+    series: v.series,
+    findings: [],
+    verdict: 'pass',
+  } as VariableSummary;
 }
 
 export function toFindingRow(f: AnalysisFinding) {
@@ -93,13 +111,23 @@ export function toFindingRow(f: AnalysisFinding) {
     location: f.location,
     magnitude: Number.isFinite(f.magnitude) ? f.magnitude : null,
     threshold: Number.isFinite(f.threshold) ? f.threshold : null,
-    details: { relative: f.relative, steps: f.steps, worst: f.worst, metric: f.metric ?? null, baseline: f.baseline ?? null },
+    details: {
+      relative: f.relative,
+      steps: f.steps,
+      worst: f.worst,
+      metric: f.metric ?? null,
+      baseline: f.baseline ?? null,
+    },
     message: f.message,
   };
 }
 
 /** Judges summaries and shapes the rows that replace a run's results. */
-export function judgeToRows(summaries: VariableSummary[], policy: Policy, baseline: VariableSummary[] | null): AnalysisResultRows {
+export function judgeToRows(
+  summaries: VariableSummary[],
+  policy: Policy,
+  baseline: VariableSummary[] | null,
+): AnalysisResultRows {
   const judgement = judge(summaries, policy, baseline);
   return {
     variables: summaries.map(toVariableRow),

@@ -6,7 +6,14 @@ import path from 'node:path';
 import { and, count, eq, inArray } from 'drizzle-orm';
 import { getDb } from '@/db/client';
 import { builds, jobs, projects, runs } from '@/db/schema';
-import { runAdvection1d, runAdvection2dSplit, sineWave, topHat, type LimiterName, type SchemeName } from '@/src/analysis/schemes';
+import {
+  runAdvection1d,
+  runAdvection2dSplit,
+  sineWave,
+  topHat,
+  type LimiterName,
+  type SchemeName,
+} from '@/src/analysis/schemes';
 import { cellCentres, formatLongCsv } from '@/src/lib/snapshot-csv';
 import type { TokenCaller } from '../auth/caller';
 import { jobHandlers } from '../jobs';
@@ -59,7 +66,8 @@ const tracerCases: DemoCase[] = [
     profile: 'tophat',
     courant: 0.4,
     bounds: { lower: 0, upper: 1 },
-    scheme: (n) => (n >= BREAK_AT && n < FIX_AT ? { scheme: 'lax-wendroff' } : { scheme: 'limited', limiter: 'van-leer' }),
+    scheme: (n) =>
+      n >= BREAK_AT && n < FIX_AT ? { scheme: 'lax-wendroff' } : { scheme: 'limited', limiter: 'van-leer' },
   },
   {
     name: 'outfall-plume',
@@ -69,11 +77,38 @@ const tracerCases: DemoCase[] = [
     bounds: { lower: 0, upper: 1 },
     scheme: (n) => (n >= BREAK_AT ? { scheme: 'warming-beam' } : { scheme: 'limited', limiter: 'minmod' }),
   },
-  { name: 'river-mouth-pulse', variable: 'c', profile: 'tophat', courant: 0.5, bounds: { lower: 0, upper: 1 }, scheme: limited('superbee') },
-  { name: 'tidal-flat-sediment', variable: 'c', profile: 'tophat', courant: 0.6, bounds: { lower: 0, upper: 1 }, scheme: limited('koren') },
-  { name: 'channel-dye-release', variable: 'c', profile: 'tophat', courant: 0.8, scheme: limited('monotonized-central') },
+  {
+    name: 'river-mouth-pulse',
+    variable: 'c',
+    profile: 'tophat',
+    courant: 0.5,
+    bounds: { lower: 0, upper: 1 },
+    scheme: limited('superbee'),
+  },
+  {
+    name: 'tidal-flat-sediment',
+    variable: 'c',
+    profile: 'tophat',
+    courant: 0.6,
+    bounds: { lower: 0, upper: 1 },
+    scheme: limited('koren'),
+  },
+  {
+    name: 'channel-dye-release',
+    variable: 'c',
+    profile: 'tophat',
+    courant: 0.8,
+    scheme: limited('monotonized-central'),
+  },
   { name: 'smooth-tide-upwind', variable: 'c', profile: 'sine', courant: 0.5, scheme: () => ({ scheme: 'upwind' }) },
-  { name: 'lagoon-patch-2d', variable: 'c', profile: 'square2d', courant: 0.4, bounds: { lower: 0, upper: 1 }, scheme: limited('minmod') },
+  {
+    name: 'lagoon-patch-2d',
+    variable: 'c',
+    profile: 'square2d',
+    courant: 0.4,
+    bounds: { lower: 0, upper: 1 },
+    scheme: limited('minmod'),
+  },
 ];
 
 const flowCases: DemoCase[] = [
@@ -92,7 +127,9 @@ const EVERY = 4;
 /** Snapshots of one case on one night, as the CSV a solver's post-processing would write. */
 function caseCsv(c: DemoCase, night: number): string {
   const choice = c.scheme(night);
-  const times = Array.from({ length: TIME_STEPS / EVERY + 1 }, (_, k) => Number((k * EVERY * c.courant * (1 / CELLS)).toPrecision(12)));
+  const times = Array.from({ length: TIME_STEPS / EVERY + 1 }, (_, k) =>
+    Number((k * EVERY * c.courant * (1 / CELLS)).toPrecision(12)),
+  );
   const steps = times.map((_, k) => k * EVERY);
   // Flow cases carry density around 1, not 0, as a gas would.
   const offset = c.variable === 'rho' ? 1 : 0;
@@ -100,14 +137,38 @@ function caseCsv(c: DemoCase, night: number): string {
     const initial = new Float64Array(SIDE_2D * SIDE_2D);
     for (let y = 6; y < 14; y++) for (let x = 5; x < 13; x++) initial[y * SIDE_2D + x] = 1;
     if (offset) for (let i = 0; i < initial.length; i++) initial[i]! += offset;
-    const snaps = runAdvection2dSplit({ initial, nx: SIDE_2D, ny: SIDE_2D, courantX: c.courant, courantY: c.courant / 2, steps: TIME_STEPS, every: EVERY, ...choice });
+    const snaps = runAdvection2dSplit({
+      initial,
+      nx: SIDE_2D,
+      ny: SIDE_2D,
+      courantX: c.courant,
+      courantY: c.courant / 2,
+      steps: TIME_STEPS,
+      every: EVERY,
+      ...choice,
+    });
     const centres = cellCentres(SIDE_2D);
-    return formatLongCsv({ steps, times, axes: [{ name: 'y', centres }, { name: 'x', centres }], variables: { [c.variable]: snaps }, digits: 17 });
+    return formatLongCsv({
+      steps,
+      times,
+      axes: [
+        { name: 'y', centres },
+        { name: 'x', centres },
+      ],
+      variables: { [c.variable]: snaps },
+      digits: 17,
+    });
   }
   const initial = c.profile === 'sine' ? sineWave(CELLS) : topHat(CELLS, 20, 20, offset, offset + 1);
   if (c.profile === 'sine' && offset) for (let i = 0; i < initial.length; i++) initial[i] = offset + 0.2 * initial[i]!;
   const snaps = runAdvection1d({ initial, courant: c.courant, steps: TIME_STEPS, every: EVERY, ...choice });
-  return formatLongCsv({ steps, times, axes: [{ name: 'x', centres: cellCentres(CELLS) }], variables: { [c.variable]: snaps }, digits: 17 });
+  return formatLongCsv({
+    steps,
+    times,
+    axes: [{ name: 'x', centres: cellCentres(CELLS) }],
+    variables: { [c.variable]: snaps },
+    digits: 17,
+  });
 }
 
 function demoCommit(project: string, night: number): string {
@@ -121,7 +182,14 @@ function nightDate(night: number, nights: number): Date {
   return d;
 }
 
-async function postCase(caller: TokenCaller, dir: string, c: DemoCase, night: number, buildKey: string, commit: string): Promise<string> {
+async function postCase(
+  caller: TokenCaller,
+  dir: string,
+  c: DemoCase,
+  night: number,
+  buildKey: string,
+  commit: string,
+): Promise<string> {
   const text = caseCsv(c, night);
   const file = path.join(dir, `${c.name}-${night}.csv`);
   await writeFile(file, text);
@@ -131,8 +199,21 @@ async function postCase(caller: TokenCaller, dir: string, c: DemoCase, night: nu
   const manifest = { variableOptions: { [c.variable]: options } };
   const { run } = await createRunFromFile({
     scope: caller,
-    target: { build: buildKey, commit, branch: 'main', case: c.name, ciUrl: `https://ci.brackwater.example/builds/${buildKey}`, manifest },
-    file: { path: file, fileName: `${c.name}.csv`, contentType: 'text/csv', size: Buffer.byteLength(text), sha256: createHash('sha256').update(text).digest('hex') },
+    target: {
+      build: buildKey,
+      commit,
+      branch: 'main',
+      case: c.name,
+      ciUrl: `https://ci.brackwater.example/builds/${buildKey}`,
+      manifest,
+    },
+    file: {
+      path: file,
+      fileName: `${c.name}.csv`,
+      contentType: 'text/csv',
+      size: Buffer.byteLength(text),
+      sha256: createHash('sha256').update(text).digest('hex'),
+    },
     idempotencyKey: `demo:${buildKey}:${c.name}`,
   });
   await rm(file, { force: true });
@@ -142,7 +223,11 @@ async function postCase(caller: TokenCaller, dir: string, c: DemoCase, night: nu
 /** Moves a seeded build and its runs back to the night it pretends to have run. */
 async function backdateBuild(projectId: string, key: string, at: Date): Promise<void> {
   const db = getDb();
-  const [build] = await db.update(builds).set({ startedAt: at }).where(and(eq(builds.projectId, projectId), eq(builds.key, key))).returning({ id: builds.id });
+  const [build] = await db
+    .update(builds)
+    .set({ startedAt: at })
+    .where(and(eq(builds.projectId, projectId), eq(builds.key, key)))
+    .returning({ id: builds.id });
   if (build) await db.update(runs).set({ queuedAt: at, createdAt: at }).where(eq(runs.buildId, build.id));
 }
 
@@ -169,7 +254,12 @@ async function seedDemoAccounts(workspaceId: string): Promise<string[]> {
   for (const p of people) {
     if (await getUserByEmail({ email: p.email })) continue;
     const password = randomBytes(12).toString('base64url');
-    const user = await insertUser({ email: p.email, name: p.name, passwordHash: await hashPassword(password), emailVerified: true });
+    const user = await insertUser({
+      email: p.email,
+      name: p.name,
+      passwordHash: await hashPassword(password),
+      emailVerified: true,
+    });
     await upsertMembership({ workspaceId, userId: user.id, role: p.role });
     lines.push(`Demo sign-in (${p.role}): ${p.email} / ${password}`);
   }
@@ -193,7 +283,13 @@ async function subscribeDemoPeople(workspaceId: string, projectId: string): Prom
       projectId,
       userId: user.id,
       email: user.email,
-      settings: { weeklyDigest: true, failureAlerts: w.failureAlerts, digestDay: 1, digestHour: 8, timeZone: 'Europe/Lisbon' },
+      settings: {
+        weeklyDigest: true,
+        failureAlerts: w.failureAlerts,
+        digestDay: 1,
+        digestHour: 8,
+        timeZone: 'Europe/Lisbon',
+      },
     });
   }
 }
@@ -206,12 +302,26 @@ async function keepNotes(file: string | undefined, lines: string[]): Promise<voi
 export async function seedDemo(options: { notesFile?: string } = {}): Promise<string> {
   const ws = await ensureWorkspace(DEMO_WORKSPACE);
   await keepNotes(options.notesFile, await seedDemoAccounts(ws.id));
-  const [existing] = await getDb().select({ n: count() }).from(builds).innerJoin(projects, eq(projects.id, builds.projectId)).where(eq(projects.workspaceId, ws.id));
+  const [existing] = await getDb()
+    .select({ n: count() })
+    .from(builds)
+    .innerJoin(projects, eq(projects.id, builds.projectId))
+    .where(eq(projects.workspaceId, ws.id));
   if ((existing?.n ?? 0) > 0) return 'demo data already present';
 
   const demoProjects: DemoProject[] = [
-    { slug: 'tidewater', name: 'Tidewater coastal tracer model', cases: tracerCases, nights: Array.from({ length: NIGHTS }, (_, n) => n) },
-    { slug: 'kestrel-flow', name: 'Kestrel compressible-flow code', cases: flowCases, nights: Array.from({ length: NIGHTS / 3 }, (_, k) => k * 3) },
+    {
+      slug: 'tidewater',
+      name: 'Tidewater coastal tracer model',
+      cases: tracerCases,
+      nights: Array.from({ length: NIGHTS }, (_, n) => n),
+    },
+    {
+      slug: 'kestrel-flow',
+      name: 'Kestrel compressible-flow code',
+      cases: flowCases,
+      nights: Array.from({ length: NIGHTS / 3 }, (_, k) => k * 3),
+    },
   ];
   const dir = await mkdtemp(path.join(os.tmpdir(), 'varigate-demo-'));
   const notes: string[] = [];
@@ -221,7 +331,13 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
       await subscribeDemoPeople(ws.id, project.id);
       const token = await issueToken({ workspaceId: ws.id, projectId: project.id, name: 'demo CI' });
       notes.push(`CI token for project ${p.slug}: ${token.token}`);
-      const caller: TokenCaller = { kind: 'token', tokenId: token.id, workspaceId: ws.id, projectId: project.id, projectSlug: p.slug };
+      const caller: TokenCaller = {
+        kind: 'token',
+        tokenId: token.id,
+        workspaceId: ws.id,
+        projectId: project.id,
+        projectSlug: p.slug,
+      };
       for (const [i, night] of p.nights.entries()) {
         const key = `nightly-${1001 + night}`;
         const commit = demoCommit(p.slug, night);
@@ -232,7 +348,12 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
           // The first night's results become the accepted baselines.
           await analyseQueued();
           for (const c of p.cases) {
-            await acceptBaseline({ actor: { workspaceId: ws.id }, projectId: project.id, caseName: c.name, runId: runIds[c.name]! });
+            await acceptBaseline({
+              actor: { workspaceId: ws.id },
+              projectId: project.id,
+              caseName: c.name,
+              runId: runIds[c.name]!,
+            });
           }
         }
       }
@@ -243,6 +364,9 @@ export async function seedDemo(options: { notesFile?: string } = {}): Promise<st
   }
   await keepNotes(options.notesFile, notes);
   const [total] = await getDb().select({ n: count() }).from(runs).where(eq(runs.workspaceId, ws.id));
-  const [left] = await getDb().select({ n: count() }).from(jobs).where(and(eq(jobs.kind, ANALYSE_RUN_JOB), inArray(jobs.status, ['queued', 'running'])));
+  const [left] = await getDb()
+    .select({ n: count() })
+    .from(jobs)
+    .where(and(eq(jobs.kind, ANALYSE_RUN_JOB), inArray(jobs.status, ['queued', 'running'])));
   return `seeded workspace ${DEMO_WORKSPACE.slug}: ${total?.n ?? 0} runs${left?.n ? `, ${left.n} still queued` : ''}`;
 }

@@ -41,13 +41,20 @@ export const CASE_HISTORY_SIZE = 30;
 
 function assertMaintainer(ctx: MemberContext): void {
   if (!roleAtLeast(ctx.role, 'maintainer')) {
-    throw new AppError('forbidden:role', `Changing policies and baselines needs the maintainer role; you are ${ctx.role}.`);
+    throw new AppError(
+      'forbidden:role',
+      `Changing policies and baselines needs the maintainer role; you are ${ctx.role}.`,
+    );
   }
 }
 
 function invalidPolicy(fieldErrors: Record<string, string[]>): AppError {
   const count = Object.keys(fieldErrors).length;
-  return new AppError('invalid:policy', `The policy has ${count === 1 ? 'a problem' : `${count} problems`}; see the marked fields.`, { fieldErrors });
+  return new AppError(
+    'invalid:policy',
+    `The policy has ${count === 1 ? 'a problem' : `${count} problems`}; see the marked fields.`,
+    { fieldErrors },
+  );
 }
 
 async function findProject(ctx: MemberContext, slug: string): Promise<Project> {
@@ -56,7 +63,11 @@ async function findProject(ctx: MemberContext, slug: string): Promise<Project> {
   return project;
 }
 
-async function findProjectAndCase(ctx: MemberContext, projectSlug: string, caseName: string): Promise<{ project: Project; kase: Case }> {
+async function findProjectAndCase(
+  ctx: MemberContext,
+  projectSlug: string,
+  caseName: string,
+): Promise<{ project: Project; kase: Case }> {
   const project = await findProject(ctx, projectSlug);
   const kase = await getCaseByName({ workspaceId: ctx.workspace.id, projectId: project.id, name: caseName });
   if (!kase) throw new AppError('not_found:case', `No case "${caseName}" in project "${projectSlug}".`);
@@ -92,7 +103,12 @@ export async function getCasePage(ctx: MemberContext, projectSlug: string, caseN
   const worst = await listWorstFindings({ workspaceId, runIds: runs.map((r) => r.runId) });
   const history: CaseHistoryRow[] = runs.map((r) => ({ ...r, worstFinding: worst[r.runId] ?? null }));
   return {
-    project: { slug: project.slug, name: project.name, defaultBranch: project.defaultBranch, defaultPolicy: project.defaultPolicy },
+    project: {
+      slug: project.slug,
+      name: project.name,
+      defaultBranch: project.defaultBranch,
+      defaultPolicy: project.defaultPolicy,
+    },
     kase: { id: kase.id, name: kase.name, policy: kase.policy },
     history,
     totalRuns: total,
@@ -105,18 +121,33 @@ export async function getCasePage(ctx: MemberContext, projectSlug: string, caseN
 // ---------------------------------------------------------------------------------------------
 // Re-judging from stored summaries
 
-
 interface Rejudged {
   rows: AnalysisResultRows;
   baselineRunId: string | null;
 }
 
 /** Judges a run's stored summaries with `policy` and the case's baseline; writes nothing. */
-async function judgeStoredRun(workspaceId: string, project: Project, kase: Case, run: CaseRunRow, policy: Policy): Promise<Rejudged> {
+async function judgeStoredRun(
+  workspaceId: string,
+  project: Project,
+  kase: Case,
+  run: CaseRunRow,
+  policy: Policy,
+): Promise<Rejudged> {
   const stored = await listRunVariables({ workspaceId, runId: run.runId });
-  if (stored.length === 0) throw new AppError('conflict:run', 'The latest run has no stored analysis to re-judge; analyse it again first.');
-  const baseline = await loadBaselineSummaries({ workspaceId, caseId: kase.id, runId: run.runId, branch: run.branch, defaultBranch: project.defaultBranch });
-  return { rows: judgeToRows(stored.map(fromVariableRow), policy, baseline?.summaries ?? null), baselineRunId: baseline?.runId ?? null };
+  if (stored.length === 0)
+    throw new AppError('conflict:run', 'The latest run has no stored analysis to re-judge; analyse it again first.');
+  const baseline = await loadBaselineSummaries({
+    workspaceId,
+    caseId: kase.id,
+    runId: run.runId,
+    branch: run.branch,
+    defaultBranch: project.defaultBranch,
+  });
+  return {
+    rows: judgeToRows(stored.map(fromVariableRow), policy, baseline?.summaries ?? null),
+    baselineRunId: baseline?.runId ?? null,
+  };
 }
 
 export interface PreviewFinding {
@@ -138,13 +169,21 @@ function previewOf(run: CaseRunRow, judged: Rejudged): PolicyPreview {
   return {
     run: { id: run.runId, buildKey: run.buildKey, branch: run.branch, verdict: run.verdict },
     verdict: judged.rows.verdict as Verdict,
-    findings: judged.rows.findings.map((f) => ({ severity: f.severity, variable: f.variable, kind: f.kind, message: f.message })),
+    findings: judged.rows.findings.map((f) => ({
+      severity: f.severity,
+      variable: f.variable,
+      kind: f.kind,
+      message: f.message,
+    })),
     baselineRunId: judged.baselineRunId,
   };
 }
 
 /** Validates a case's candidate policy over its project's default and returns both layers. */
-function checkCasePolicy(project: Project, values: PolicyFormValues): { partial: Record<string, unknown>; effective: Policy } {
+function checkCasePolicy(
+  project: Project,
+  values: PolicyFormValues,
+): { partial: Record<string, unknown>; effective: Policy } {
   const result = validatePolicyForm(values, project.defaultPolicy);
   if (!result.ok) throw invalidPolicy(result.fieldErrors);
   return { partial: result.partial, effective: result.effective };
@@ -154,7 +193,10 @@ function checkCasePolicy(project: Project, values: PolicyFormValues): { partial:
  * What the case's latest analysed run would be judged with the candidate policy, before anything
  * is saved. Null when the case has no analysed run yet. Writes nothing.
  */
-export async function previewCasePolicy(ctx: MemberContext, input: { projectSlug: string; caseName: string; values: PolicyFormValues }): Promise<PolicyPreview | null> {
+export async function previewCasePolicy(
+  ctx: MemberContext,
+  input: { projectSlug: string; caseName: string; values: PolicyFormValues },
+): Promise<PolicyPreview | null> {
   assertMaintainer(ctx);
   const { project, kase } = await findProjectAndCase(ctx, input.projectSlug, input.caseName);
   const { effective } = checkCasePolicy(project, input.values);
@@ -183,7 +225,8 @@ export async function saveCasePolicy(
   const { partial, effective } = checkCasePolicy(project, input.values);
   const latest = input.rejudge ? await getLatestAnalysedRun({ workspaceId, caseId: kase.id }) : undefined;
   const judged = latest ? await judgeStoredRun(workspaceId, project, kase, latest, effective) : null;
-  const rejudged = latest && judged ? { runId: latest.runId, before: latest.verdict, after: judged.rows.verdict as Verdict } : null;
+  const rejudged =
+    latest && judged ? { runId: latest.runId, before: latest.verdict, after: judged.rows.verdict as Verdict } : null;
   await transaction(async (tx) => {
     await updateCasePolicy({ workspaceId, caseId: kase.id, policy: partial }, tx);
     if (latest && judged) {
@@ -210,7 +253,14 @@ export async function saveCasePolicy(
 
 export async function getProjectSettingsPage(ctx: MemberContext, projectSlug: string) {
   const project = await pageLookup(() => findProject(ctx, projectSlug));
-  return { project: { slug: project.slug, name: project.name, defaultBranch: project.defaultBranch, defaultPolicy: project.defaultPolicy } };
+  return {
+    project: {
+      slug: project.slug,
+      name: project.name,
+      defaultBranch: project.defaultBranch,
+      defaultPolicy: project.defaultPolicy,
+    },
+  };
 }
 
 /**
@@ -227,7 +277,13 @@ export async function saveProjectSettings(
   if (!result.ok) throw invalidPolicy(result.fieldErrors);
   await transaction(async (tx) => {
     await updateProjectSettings(
-      { workspaceId: ctx.workspace.id, projectId: project.id, name: input.name, defaultBranch: input.defaultBranch, defaultPolicy: result.partial },
+      {
+        workspaceId: ctx.workspace.id,
+        projectId: project.id,
+        name: input.name,
+        defaultBranch: input.defaultBranch,
+        defaultPolicy: result.partial,
+      },
       tx,
     );
     await insertAuditEvent(
@@ -273,12 +329,22 @@ export interface BaselineComparison {
   isCurrent: boolean;
 }
 
-async function keyMetricsOf(workspaceId: string, run: { runId: string; buildKey: string; branch: string; commit: string; status: string; verdict: string | null }): Promise<RunKeyMetrics> {
+async function keyMetricsOf(
+  workspaceId: string,
+  run: { runId: string; buildKey: string; branch: string; commit: string; status: string; verdict: string | null },
+): Promise<RunKeyMetrics> {
   const rows = await listRunVariables({ workspaceId, runId: run.runId });
-  return { ...run, variables: rows.map((v) => ({ variable: v.name, metrics: (v.summary as { metrics: SummaryMetrics }).metrics })) };
+  return {
+    ...run,
+    variables: rows.map((v) => ({ variable: v.name, metrics: (v.summary as { metrics: SummaryMetrics }).metrics })),
+  };
 }
 
-function pickBaseline(rows: CaseBaselineRow[], branch: string, defaultBranch: string): { row: CaseBaselineRow; fromDefault: boolean } | null {
+function pickBaseline(
+  rows: CaseBaselineRow[],
+  branch: string,
+  defaultBranch: string,
+): { row: CaseBaselineRow; fromDefault: boolean } | null {
   const own = rows.find((b) => b.branch === branch);
   if (own) return { row: own, fromDefault: false };
   const fallback = rows.find((b) => b.branch === defaultBranch);
@@ -295,23 +361,45 @@ export async function getBaselineComparison(
   const kase = project ? await getCaseByName({ workspaceId, projectId: project.id, name: input.caseName }) : undefined;
   const run = await getRunContext({ workspaceId, id: input.runId });
   if (!project || !kase || !run || run.run.caseId !== kase.id) return null;
-  const picked = pickBaseline(await listCaseBaselines({ workspaceId, caseId: kase.id }), input.branch, project.defaultBranch);
+  const picked = pickBaseline(
+    await listCaseBaselines({ workspaceId, caseId: kase.id }),
+    input.branch,
+    project.defaultBranch,
+  );
   const [runMetrics, currentMetrics] = await Promise.all([
-    keyMetricsOf(workspaceId, { runId: run.run.id, buildKey: run.buildKey, branch: run.branch, commit: run.commit, status: run.run.status, verdict: run.run.verdict }),
+    keyMetricsOf(workspaceId, {
+      runId: run.run.id,
+      buildKey: run.buildKey,
+      branch: run.branch,
+      commit: run.commit,
+      status: run.run.status,
+      verdict: run.run.verdict,
+    }),
     picked ? keyMetricsOf(workspaceId, { ...picked.row, status: 'done' }) : Promise.resolve(null),
   ]);
   return {
     caseName: kase.name,
     branch: input.branch,
     run: runMetrics,
-    current: picked && currentMetrics ? { ...currentMetrics, branch: picked.row.branch, acceptedAt: picked.row.acceptedAt, acceptedByEmail: picked.row.acceptedByEmail } : null,
+    current:
+      picked && currentMetrics
+        ? {
+            ...currentMetrics,
+            branch: picked.row.branch,
+            acceptedAt: picked.row.acceptedAt,
+            acceptedByEmail: picked.row.acceptedByEmail,
+          }
+        : null,
     currentFromDefaultBranch: picked?.fromDefault ?? false,
     isCurrent: picked !== null && !picked.fromDefault && picked.row.runId === run.run.id,
   };
 }
 
 /** Accepts a run as its case's baseline on a branch, for a signed-in maintainer (audited by acceptBaseline). */
-export async function acceptBaselineAsMember(ctx: MemberContext, input: { projectSlug: string; caseName: string; runId: string; branch: string }) {
+export async function acceptBaselineAsMember(
+  ctx: MemberContext,
+  input: { projectSlug: string; caseName: string; runId: string; branch: string },
+) {
   assertMaintainer(ctx);
   const project = await findProject(ctx, input.projectSlug);
   return acceptBaseline({

@@ -75,18 +75,30 @@ export async function getRunReport(scope: RunScope): Promise<RunReport> {
       finishedAt: r.finishedAt?.toISOString() ?? null,
     },
     findings: findings.map(findingView),
-    variables: variables.map((v: Variable) => ({ name: v.name, shape: v.shape, precision: v.precision, summary: v.summary })),
+    variables: variables.map((v: Variable) => ({
+      name: v.name,
+      shape: v.shape,
+      precision: v.precision,
+      summary: v.summary,
+    })),
     note: CHECKS_DO_NOT_PROVE,
   };
 }
 
 /** The per-step series of one variable (the first one when none is named). */
-export async function getRunSeries(scope: RunScope, variableName?: string): Promise<{ variable: string; series: unknown; variables: string[] }> {
+export async function getRunSeries(
+  scope: RunScope,
+  variableName?: string,
+): Promise<{ variable: string; series: unknown; variables: string[] }> {
   const variables = await listRunVariables({ workspaceId: scope.workspaceId, runId: scope.runId });
-  if (variables.length === 0) throw new AppError('not_found:series', 'This run has no analysed variables (yet): check its status.');
+  if (variables.length === 0)
+    throw new AppError('not_found:series', 'This run has no analysed variables (yet): check its status.');
   const chosen = variableName ? variables.find((v) => v.name === variableName) : variables[0];
   if (!chosen) {
-    throw new AppError('not_found:variable', `No variable "${variableName}" in this run; it has: ${variables.map((v) => v.name).join(', ')}.`);
+    throw new AppError(
+      'not_found:variable',
+      `No variable "${variableName}" in this run; it has: ${variables.map((v) => v.name).join(', ')}.`,
+    );
   }
   return { variable: chosen.name, series: chosen.series, variables: variables.map((v) => v.name) };
 }
@@ -104,7 +116,10 @@ export async function getBuildReport(scope: ProjectScope, key: string) {
     }),
   );
   const open = runs.filter((r) => r.status === 'queued' || r.status === 'analysing').length;
-  const verdict = runs.reduce<string | null>((acc, r) => (r.verdict && (!acc || verdictRank[r.verdict]! > verdictRank[acc]!) ? r.verdict : acc), null);
+  const verdict = runs.reduce<string | null>(
+    (acc, r) => (r.verdict && (!acc || verdictRank[r.verdict]! > verdictRank[acc]!) ? r.verdict : acc),
+    null,
+  );
   return {
     build: {
       key: build.key,
@@ -148,7 +163,12 @@ export interface StepValues {
  * fields) and reduced for a chart: 1D decimated keeping local extrema, 2D block-averaged to at
  * most `points` cells, 3D the middle slice of the slowest axis.
  */
-export async function getRunStep(scope: RunScope, stepIndex: number, variableName: string | undefined, points: number): Promise<StepValues> {
+export async function getRunStep(
+  scope: RunScope,
+  stepIndex: number,
+  variableName: string | undefined,
+  points: number,
+): Promise<StepValues> {
   const ctx = await loadRun(scope);
   const upload = await getUploadForRun({ workspaceId: scope.workspaceId, runId: scope.runId });
   if (!upload) throw new AppError('not_found:upload', 'This run has no stored file.');
@@ -157,7 +177,10 @@ export async function getRunStep(scope: RunScope, stepIndex: number, variableNam
       const names = reader.header.variables.map((v) => v.name);
       const name = variableName ?? names[0];
       if (!name || !names.includes(name)) {
-        throw new AppError('not_found:variable', `No variable "${variableName}" in this file; it has: ${names.join(', ')}.`);
+        throw new AppError(
+          'not_found:variable',
+          `No variable "${variableName}" in this file; it has: ${names.join(', ')}.`,
+        );
       }
       const shape = reader.header.grid.axes.map((a) => a.size);
       for await (const step of reader.steps) {
@@ -176,11 +199,26 @@ function jsonNumber(v: number): number | null {
   return Number.isFinite(v) ? v : null;
 }
 
-function reduceStep(variable: string, step: number, time: number, shape: number[], values: ArrayLike<number>, points: number): StepValues {
+function reduceStep(
+  variable: string,
+  step: number,
+  time: number,
+  shape: number[],
+  values: ArrayLike<number>,
+  points: number,
+): StepValues {
   const t = Number.isFinite(time) ? time : null;
   if (shape.length === 1) {
     const d = decimateKeepingExtrema(values, points);
-    return { variable, step, time: t, shape, index: d.index, values: d.values.map((v) => jsonNumber(v) as number), complete: d.complete };
+    return {
+      variable,
+      step,
+      time: t,
+      shape,
+      index: d.index,
+      values: d.values.map((v) => jsonNumber(v) as number),
+      complete: d.complete,
+    };
   }
   const nx = shape[shape.length - 1]!;
   const ny = shape[shape.length - 2]!;
@@ -189,5 +227,14 @@ function reduceStep(variable: string, step: number, time: number, shape: number[
   const plane = Array.prototype.slice.call(values, offset, offset + nx * ny) as number[];
   const side = Math.max(4, Math.floor(Math.sqrt(points)));
   const ds = downsample2d(plane, ny, nx, side, side);
-  return { variable, step, time: t, shape, rows: ds.rows, cols: ds.cols, values: ds.values.map((v) => jsonNumber(v) as number), complete: ds.rows === ny && ds.cols === nx };
+  return {
+    variable,
+    step,
+    time: t,
+    shape,
+    rows: ds.rows,
+    cols: ds.cols,
+    values: ds.values.map((v) => jsonNumber(v) as number),
+    complete: ds.rows === ny && ds.cols === nx,
+  };
 }

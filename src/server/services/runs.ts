@@ -37,16 +37,31 @@ function objectKeyFor(scope: ProjectScope, fileName: string): string {
 
 /** SHA-256 over what defines a request, to tell a retry from a different request with a reused key. */
 function requestHash(target: RunTarget, contentSha256: string): string {
-  const canonical = JSON.stringify([target.build, target.commit, target.branch, target.case, target.format ?? null, target.manifest ?? null, contentSha256]);
+  const canonical = JSON.stringify([
+    target.build,
+    target.commit,
+    target.branch,
+    target.case,
+    target.format ?? null,
+    target.manifest ?? null,
+    contentSha256,
+  ]);
   return createHash('sha256').update(canonical).digest('hex');
 }
 
-async function findIdempotentRun(scope: ProjectScope, key: string | undefined, hash: string): Promise<CreatedRun | undefined> {
+async function findIdempotentRun(
+  scope: ProjectScope,
+  key: string | undefined,
+  hash: string,
+): Promise<CreatedRun | undefined> {
   if (!key) return undefined;
   const existing = await getRunByIdempotencyKey({ projectId: scope.projectId, key });
   if (!existing) return undefined;
   if (existing.requestHash !== hash) {
-    throw new AppError('conflict:idempotency', 'This Idempotency-Key was already used for a different request (other fields or another file).');
+    throw new AppError(
+      'conflict:idempotency',
+      'This Idempotency-Key was already used for a different request (other fields or another file).',
+    );
   }
   return { run: { id: existing.id, status: existing.status }, created: false };
 }
@@ -59,11 +74,24 @@ function isUniqueViolation(err: unknown): boolean {
  * Records a run for a stored object and queues its analysis, all in one transaction: when this
  * returns, the file is in object storage and the run and its job are committed.
  */
-async function recordRun(scope: ProjectScope, target: RunTarget, object: StoredObject, idempotencyKey: string | undefined, hash: string): Promise<CreatedRun> {
+async function recordRun(
+  scope: ProjectScope,
+  target: RunTarget,
+  object: StoredObject,
+  idempotencyKey: string | undefined,
+  hash: string,
+): Promise<CreatedRun> {
   try {
     const run = await transaction(async (tx) => {
       const build = await ensureBuild(
-        { workspaceId: scope.workspaceId, projectId: scope.projectId, key: target.build, commit: target.commit, branch: target.branch, ciUrl: target.ciUrl },
+        {
+          workspaceId: scope.workspaceId,
+          projectId: scope.projectId,
+          key: target.build,
+          commit: target.commit,
+          branch: target.branch,
+          ciUrl: target.ciUrl,
+        },
         tx,
       );
       if (build.commit !== target.commit || build.branch !== target.branch) {
@@ -72,7 +100,10 @@ async function recordRun(scope: ProjectScope, target: RunTarget, object: StoredO
           `Build "${target.build}" was first posted for commit ${build.commit} on ${build.branch}; this upload says ${target.commit} on ${target.branch}.`,
         );
       }
-      const kase = await ensureCase({ workspaceId: scope.workspaceId, projectId: scope.projectId, name: target.case }, tx);
+      const kase = await ensureCase(
+        { workspaceId: scope.workspaceId, projectId: scope.projectId, name: target.case },
+        tx,
+      );
       const created = await insertRun(
         {
           workspaceId: scope.workspaceId,
@@ -99,7 +130,10 @@ async function recordRun(scope: ProjectScope, target: RunTarget, object: StoredO
         tx,
       );
       await reopenBuild({ buildId: build.id }, tx);
-      await enqueue({ kind: ANALYSE_RUN_JOB, payload: { runId: created.id }, dedupeKey: analyseJobKey(created.id) }, tx);
+      await enqueue(
+        { kind: ANALYSE_RUN_JOB, payload: { runId: created.id }, dedupeKey: analyseJobKey(created.id) },
+        tx,
+      );
       return created;
     });
     return { run: { id: run.id, status: run.status }, created: true };
@@ -127,30 +161,56 @@ export async function createRunFromFile(input: {
   if (earlier) return earlier;
 
   const objectKey = objectKeyFor(scope, file.fileName);
-  await putObject({ key: objectKey, body: createReadStream(file.path), contentLength: file.size, contentType: file.contentType });
+  await putObject({
+    key: objectKey,
+    body: createReadStream(file.path),
+    contentLength: file.size,
+    contentType: file.contentType,
+  });
   try {
-    return await recordRun(scope, target, { objectKey, fileName: file.fileName, size: file.size, sha256: file.sha256, contentType: file.contentType }, idempotencyKey, hash);
+    return await recordRun(
+      scope,
+      target,
+      { objectKey, fileName: file.fileName, size: file.size, sha256: file.sha256, contentType: file.contentType },
+      idempotencyKey,
+      hash,
+    );
   } catch (err) {
     // The run was not recorded: do not leave an orphan object behind.
-    await deleteObject(objectKey).catch((e: unknown) => logger.warn({ err: e, objectKey }, 'could not remove orphan upload'));
+    await deleteObject(objectKey).catch((e: unknown) =>
+      logger.warn({ err: e, objectKey }, 'could not remove orphan upload'),
+    );
     throw err;
   }
 }
 
 /** POST /api/v1/runs with JSON: the file was uploaded through a presigned URL first. */
-export async function createRunFromObject(input: { scope: ProjectScope; body: RunFromObject; idempotencyKey?: string }): Promise<CreatedRun> {
+export async function createRunFromObject(input: {
+  scope: ProjectScope;
+  body: RunFromObject;
+  idempotencyKey?: string;
+}): Promise<CreatedRun> {
   const { scope, body, idempotencyKey } = input;
   const ownPrefix = `incoming/${scope.workspaceId}/${scope.projectId}/`;
   if (!body.objectKey.startsWith(ownPrefix)) {
-    throw new AppError('forbidden:upload', 'This objectKey was not issued to this token\'s project; ask POST /api/v1/uploads for one.');
+    throw new AppError(
+      'forbidden:upload',
+      "This objectKey was not issued to this token's project; ask POST /api/v1/uploads for one.",
+    );
   }
   const head = await headObject(body.objectKey);
   if (!head) {
-    throw new AppError('invalid:upload', `No uploaded object at "${body.objectKey}": PUT the file to the presigned URL before posting the run.`);
+    throw new AppError(
+      'invalid:upload',
+      `No uploaded object at "${body.objectKey}": PUT the file to the presigned URL before posting the run.`,
+    );
   }
   if (head.size === 0) throw new AppError('invalid:upload', 'The uploaded object is empty.');
   if (head.size > env().VARIGATE_MAX_OBJECT_BYTES) {
-    throw new AppError('too_large:upload', `The uploaded object has ${head.size} bytes; the limit is ${env().VARIGATE_MAX_OBJECT_BYTES}.`);
+    throw new AppError(
+      'too_large:upload',
+      `The uploaded object has ${head.size} bytes; the limit is ${env().VARIGATE_MAX_OBJECT_BYTES}.`,
+    );
   }
   // Hash the content, not the key: a CI job that re-runs uploads the same bytes under a new
   // presigned key, and must get its earlier run back rather than a conflict.
@@ -161,7 +221,13 @@ export async function createRunFromObject(input: { scope: ProjectScope; body: Ru
     return earlier;
   }
   const fileName = body.fileName ?? body.objectKey.split('/').pop() ?? 'upload';
-  return recordRun(scope, body, { objectKey: body.objectKey, fileName, size: head.size, sha256, contentType: head.contentType }, idempotencyKey, hash);
+  return recordRun(
+    scope,
+    body,
+    { objectKey: body.objectKey, fileName, size: head.size, sha256, contentType: head.contentType },
+    idempotencyKey,
+    hash,
+  );
 }
 
 async function sha256OfObject(key: string): Promise<string> {
@@ -171,7 +237,12 @@ async function sha256OfObject(key: string): Promise<string> {
 }
 
 /** POST /api/v1/uploads: a presigned PUT URL for a file too large to post through the app. */
-export async function presignUpload(input: { scope: ProjectScope; fileName: string; size: number; contentType?: string }): Promise<{
+export async function presignUpload(input: {
+  scope: ProjectScope;
+  fileName: string;
+  size: number;
+  contentType?: string;
+}): Promise<{
   objectKey: string;
   url: string;
   method: 'PUT';
@@ -179,10 +250,17 @@ export async function presignUpload(input: { scope: ProjectScope; fileName: stri
   expiresAt: string;
 }> {
   const max = env().VARIGATE_MAX_OBJECT_BYTES;
-  if (input.size > max) throw new AppError('too_large:upload', `The file has ${input.size} bytes; the limit is ${max}.`);
+  if (input.size > max)
+    throw new AppError('too_large:upload', `The file has ${input.size} bytes; the limit is ${max}.`);
   const objectKey = objectKeyFor(input.scope, input.fileName);
   const contentType = input.contentType ?? 'application/octet-stream';
   const expiresIn = 900;
   const url = await presignPut({ key: objectKey, contentType, expiresIn });
-  return { objectKey, url, method: 'PUT', headers: { 'content-type': contentType }, expiresAt: new Date(Date.now() + expiresIn * 1000).toISOString() };
+  return {
+    objectKey,
+    url,
+    method: 'PUT',
+    headers: { 'content-type': contentType },
+    expiresAt: new Date(Date.now() + expiresIn * 1000).toISOString(),
+  };
 }

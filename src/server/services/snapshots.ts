@@ -20,7 +20,12 @@ export async function withStoredSnapshots<T>(
   return withTempFile(
     stream,
     async (path) => {
-      const reader = await openSnapshots({ path, fileName: upload.fileName, declaredFormat: upload.format ?? undefined, manifest: ingestManifest });
+      const reader = await openSnapshots({
+        path,
+        fileName: upload.fileName,
+        declaredFormat: upload.format ?? undefined,
+        manifest: ingestManifest,
+      });
       try {
         return await fn(reader);
       } finally {

@@ -18,9 +18,15 @@ export interface IssuedToken {
   token: string;
 }
 
-export async function issueToken(input: { workspaceId: string; projectId: string; name: string; createdBy?: string | null }): Promise<IssuedToken> {
+export async function issueToken(input: {
+  workspaceId: string;
+  projectId: string;
+  name: string;
+  createdBy?: string | null;
+}): Promise<IssuedToken> {
   const name = input.name.trim();
-  if (name.length === 0 || name.length > 100) throw new AppError('invalid:token', 'A token name has 1 to 100 characters.');
+  if (name.length === 0 || name.length > 100)
+    throw new AppError('invalid:token', 'A token name has 1 to 100 characters.');
   const secret = generateTokenSecret();
   // The token and its audit event land together: no credential exists without its record.
   const { id } = await transaction(async (tx) => {
@@ -43,7 +49,8 @@ export async function issueToken(input: { workspaceId: string; projectId: string
 
 /** Tokens are a maintainer's business; the action checks this too, the service does not rely on it. */
 function requireMaintainer(ctx: MemberContext): void {
-  if (!roleAtLeast(ctx.role, 'maintainer')) throw new AppError('forbidden:role', 'Only maintainers and admins manage CI tokens.');
+  if (!roleAtLeast(ctx.role, 'maintainer'))
+    throw new AppError('forbidden:role', 'Only maintainers and admins manage CI tokens.');
 }
 
 export interface TokensView {
@@ -53,20 +60,34 @@ export interface TokensView {
 
 export async function loadTokensView(ctx: MemberContext): Promise<TokensView> {
   requireMaintainer(ctx);
-  const [tokens, projectRows] = await Promise.all([listTokens({ workspaceId: ctx.workspace.id }), listProjects({ workspaceId: ctx.workspace.id })]);
+  const [tokens, projectRows] = await Promise.all([
+    listTokens({ workspaceId: ctx.workspace.id }),
+    listProjects({ workspaceId: ctx.workspace.id }),
+  ]);
   return { tokens, projects: projectRows.map((p) => ({ id: p.id, slug: p.slug, name: p.name })) };
 }
 
 /** Issues a token for a project of the caller's workspace; a project id from elsewhere is "not found". */
-export async function createProjectToken(ctx: MemberContext, input: { projectId: string; name: string }): Promise<IssuedToken & { projectSlug: string }> {
+export async function createProjectToken(
+  ctx: MemberContext,
+  input: { projectId: string; name: string },
+): Promise<IssuedToken & { projectSlug: string }> {
   requireMaintainer(ctx);
   const project = await getProjectById({ workspaceId: ctx.workspace.id, id: input.projectId });
   if (!project) throw new AppError('not_found:project', 'No such project in this workspace.');
-  const issued = await issueToken({ workspaceId: ctx.workspace.id, projectId: project.id, name: input.name, createdBy: ctx.user.id });
+  const issued = await issueToken({
+    workspaceId: ctx.workspace.id,
+    projectId: project.id,
+    name: input.name,
+    createdBy: ctx.user.id,
+  });
   return { ...issued, projectSlug: project.slug };
 }
 
-export async function revokeProjectToken(ctx: MemberContext, input: { tokenId: string }): Promise<{ name: string; prefix: string }> {
+export async function revokeProjectToken(
+  ctx: MemberContext,
+  input: { tokenId: string },
+): Promise<{ name: string; prefix: string }> {
   requireMaintainer(ctx);
   return transaction(async (tx) => {
     const token = await getTokenById({ workspaceId: ctx.workspace.id, id: input.tokenId }, tx);
@@ -90,15 +111,32 @@ export async function revokeProjectToken(ctx: MemberContext, input: { tokenId: s
 }
 
 /** For the command line: a project by slug, with its workspace when the slug is ambiguous. */
-export async function findProjectForCli({ projectSlug, workspaceSlug }: { projectSlug: string; workspaceSlug?: string }) {
+export async function findProjectForCli({
+  projectSlug,
+  workspaceSlug,
+}: {
+  projectSlug: string;
+  workspaceSlug?: string;
+}) {
   const rows = await getDb()
     .select({ projectId: projects.id, workspaceId: projects.workspaceId, workspaceSlug: workspaces.slug })
     .from(projects)
     .innerJoin(workspaces, eq(workspaces.id, projects.workspaceId))
-    .where(workspaceSlug ? and(eq(projects.slug, projectSlug), eq(workspaces.slug, workspaceSlug)) : eq(projects.slug, projectSlug));
-  if (rows.length === 0) throw new AppError('not_found:project', `No project "${projectSlug}"${workspaceSlug ? ` in workspace "${workspaceSlug}"` : ''}.`);
+    .where(
+      workspaceSlug
+        ? and(eq(projects.slug, projectSlug), eq(workspaces.slug, workspaceSlug))
+        : eq(projects.slug, projectSlug),
+    );
+  if (rows.length === 0)
+    throw new AppError(
+      'not_found:project',
+      `No project "${projectSlug}"${workspaceSlug ? ` in workspace "${workspaceSlug}"` : ''}.`,
+    );
   if (rows.length > 1) {
-    throw new AppError('conflict:project', `Several workspaces have a project "${projectSlug}" (${rows.map((r) => r.workspaceSlug).join(', ')}): add --workspace <slug>.`);
+    throw new AppError(
+      'conflict:project',
+      `Several workspaces have a project "${projectSlug}" (${rows.map((r) => r.workspaceSlug).join(', ')}): add --workspace <slug>.`,
+    );
   }
   return rows[0]!;
 }

@@ -23,7 +23,13 @@ export async function getOverview(ctx: MemberContext, query: OverviewQuery) {
     listBranches({ workspaceId: ctx.workspace.id }),
     getWorkspaceCounts({ workspaceId: ctx.workspace.id }),
   ]);
-  return { ...builds, pageSize: OVERVIEW_PAGE_SIZE, projects: projects.map((p) => ({ slug: p.slug, name: p.name })), branches, counts };
+  return {
+    ...builds,
+    pageSize: OVERVIEW_PAGE_SIZE,
+    projects: projects.map((p) => ({ slug: p.slug, name: p.name })),
+    branches,
+    counts,
+  };
 }
 
 async function requireProject(ctx: MemberContext, slug: string) {
@@ -39,8 +45,18 @@ export async function getProjectView(ctx: MemberContext, slug: string, page: num
   const project = await requireProject(ctx, slug);
   const pageSize = 20;
   const [daily, builds, cases] = await Promise.all([
-    listDailyPassRates({ workspaceId: ctx.workspace.id, projectId: project.id, branch: project.defaultBranch, days: TREND_DAYS }),
-    listProjectBuilds({ workspaceId: ctx.workspace.id, projectId: project.id, limit: pageSize + 1, offset: (page - 1) * pageSize }),
+    listDailyPassRates({
+      workspaceId: ctx.workspace.id,
+      projectId: project.id,
+      branch: project.defaultBranch,
+      days: TREND_DAYS,
+    }),
+    listProjectBuilds({
+      workspaceId: ctx.workspace.id,
+      projectId: project.id,
+      limit: pageSize + 1,
+      offset: (page - 1) * pageSize,
+    }),
     listCaseStates({ workspaceId: ctx.workspace.id, projectId: project.id, branch: project.defaultBranch }),
   ]);
   const last = new Date().toISOString().slice(0, 10);
@@ -71,7 +87,12 @@ export async function getBuildView(ctx: MemberContext, projectSlug: string, key:
   if (!build) notFound();
   const [cases, previous] = await Promise.all([
     listBuildCases({ workspaceId: ctx.workspace.id, buildId: build.id }),
-    getPreviousBuild({ workspaceId: ctx.workspace.id, projectId: project.id, branch: build.branch, before: build.startedAt }),
+    getPreviousBuild({
+      workspaceId: ctx.workspace.id,
+      projectId: project.id,
+      branch: build.branch,
+      before: build.startedAt,
+    }),
   ]);
   const previousCases = previous ? await listBuildCases({ workspaceId: ctx.workspace.id, buildId: previous.id }) : [];
   return { project, build, cases, previous, changes: previous ? compareBuildCases(cases, previousCases) : [] };

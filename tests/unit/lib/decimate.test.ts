@@ -52,13 +52,16 @@ describe('decimateKeepingExtrema', () => {
 
   it('keeps the global minimum and maximum of a noisy profile with more extrema than points', () => {
     fc.assert(
-      fc.property(fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 200, maxLength: 2000 }), (arr) => {
-        const r = decimateKeepingExtrema(arr, 64);
-        expect(r.index.length).toBeLessThanOrEqual(64);
-        expect(Math.max(...r.values)).toBe(Math.max(...arr));
-        expect(Math.min(...r.values)).toBe(Math.min(...arr));
-        for (let k = 1; k < r.index.length; k++) expect(r.index[k]!).toBeGreaterThan(r.index[k - 1]!);
-      }),
+      fc.property(
+        fc.array(fc.double({ min: -1e6, max: 1e6, noNaN: true }), { minLength: 200, maxLength: 2000 }),
+        (arr) => {
+          const r = decimateKeepingExtrema(arr, 64);
+          expect(r.index.length).toBeLessThanOrEqual(64);
+          expect(Math.max(...r.values)).toBe(Math.max(...arr));
+          expect(Math.min(...r.values)).toBe(Math.min(...arr));
+          for (let k = 1; k < r.index.length; k++) expect(r.index[k]!).toBeGreaterThan(r.index[k - 1]!);
+        },
+      ),
     );
   });
 

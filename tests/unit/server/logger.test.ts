@@ -10,7 +10,15 @@ function capture(): { lines: () => Record<string, unknown>[]; stream: Writable }
       cb();
     },
   });
-  return { stream, lines: () => out.join('').trim().split('\n').map((l) => JSON.parse(l) as Record<string, unknown>) };
+  return {
+    stream,
+    lines: () =>
+      out
+        .join('')
+        .trim()
+        .split('\n')
+        .map((l) => JSON.parse(l) as Record<string, unknown>),
+  };
 }
 
 describe('logger', () => {

@@ -7,7 +7,13 @@ import { listMyWorkspaces, requireMember } from '@/src/server/auth/session';
 import { signOutAction } from '../../actions';
 
 /** Every page of a workspace: membership is checked here and again by each page and action. */
-export default async function WorkspaceLayout({ children, params }: { children: ReactNode; params: Promise<{ workspace: string }> }) {
+export default async function WorkspaceLayout({
+  children,
+  params,
+}: {
+  children: ReactNode;
+  params: Promise<{ workspace: string }>;
+}) {
   const { workspace } = await params;
   const ctx = await requireMember(workspace);
   const workspaces = await listMyWorkspaces(ctx.user);
@@ -19,13 +25,20 @@ export default async function WorkspaceLayout({ children, params }: { children: 
             Varigate
           </Link>
           <details className="relative">
-            <summary className="cursor-pointer list-none rounded-md px-2 py-1 text-sm hover:bg-slate-100 dark:hover:bg-slate-800" aria-label="Switch workspace">
+            <summary
+              className="cursor-pointer list-none rounded-md px-2 py-1 text-sm hover:bg-slate-100 dark:hover:bg-slate-800"
+              aria-label="Switch workspace"
+            >
               {ctx.workspace.name} <span aria-hidden>▾</span>
             </summary>
             <ul className="absolute z-20 mt-1 min-w-56 rounded-md border border-slate-200 bg-white py-1 shadow-lg dark:border-slate-700 dark:bg-slate-900">
               {workspaces.map((w) => (
                 <li key={w.workspaceId}>
-                  <Link href={`/w/${w.slug}`} className="block px-3 py-1.5 text-sm hover:bg-slate-100 dark:hover:bg-slate-800" aria-current={w.slug === ctx.workspace.slug ? 'page' : undefined}>
+                  <Link
+                    href={`/w/${w.slug}`}
+                    className="block px-3 py-1.5 text-sm hover:bg-slate-100 dark:hover:bg-slate-800"
+                    aria-current={w.slug === ctx.workspace.slug ? 'page' : undefined}
+                  >
                     {w.name} <span className="text-xs text-slate-500">{w.role}</span>
                   </Link>
                 </li>

@@ -26,14 +26,23 @@ function queryString(q: OverviewQuery, page: number): string {
   return s ? `?${s}` : '';
 }
 
-const selectClass = 'mt-1 block rounded-md border border-slate-300 bg-white px-2 py-1 text-sm dark:border-slate-700 dark:bg-slate-900';
+const selectClass =
+  'mt-1 block rounded-md border border-slate-300 bg-white px-2 py-1 text-sm dark:border-slate-700 dark:bg-slate-900';
 
 /** Home of a workspace: the builds that need attention, newest first. */
-export default async function OverviewPage({ params, searchParams }: { params: Promise<{ workspace: string }>; searchParams: SearchParams }) {
+export default async function OverviewPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ workspace: string }>;
+  searchParams: SearchParams;
+}) {
   const { workspace } = await params;
   const ctx = await requireMember(workspace);
   const raw = await searchParams;
-  const query = overviewQuerySchema.parse(Object.fromEntries(Object.entries(raw).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v])));
+  const query = overviewQuerySchema.parse(
+    Object.fromEntries(Object.entries(raw).map(([k, v]) => [k, Array.isArray(v) ? v[0] : v])),
+  );
   const data = await getOverview(ctx, query);
   const base = `/w/${workspace}`;
   const filtered = query.project || query.branch || query.from || query.to || query.verdict !== 'problems';
@@ -44,12 +53,17 @@ export default async function OverviewPage({ params, searchParams }: { params: P
         <div>
           <h1 className="text-2xl font-semibold">Builds needing attention</h1>
           <p className="mt-1 text-sm text-slate-500">
-            {data.counts.projects} projects · {data.counts.builds} builds · {data.counts.failingBuilds7d} failing in the last 7 days
+            {data.counts.projects} projects · {data.counts.builds} builds · {data.counts.failingBuilds7d} failing in the
+            last 7 days
           </p>
         </div>
         <nav aria-label="Projects" className="flex flex-wrap gap-2 text-sm">
           {data.projects.map((p) => (
-            <Link key={p.slug} href={`${base}/projects/${p.slug}`} className="rounded-md border border-slate-300 px-2 py-1 hover:bg-slate-50 dark:border-slate-700 dark:hover:bg-slate-800">
+            <Link
+              key={p.slug}
+              href={`${base}/projects/${p.slug}`}
+              className="rounded-md border border-slate-300 px-2 py-1 hover:bg-slate-50 dark:border-slate-700 dark:hover:bg-slate-800"
+            >
               {p.name}
             </Link>
           ))}
@@ -92,7 +106,12 @@ export default async function OverviewPage({ params, searchParams }: { params: P
         </label>
         <label>
           From
-          <input type="date" name="from" defaultValue={query.from?.toISOString().slice(0, 10)} className={selectClass} />
+          <input
+            type="date"
+            name="from"
+            defaultValue={query.from?.toISOString().slice(0, 10)}
+            className={selectClass}
+          />
         </label>
         <label>
           Before
@@ -105,7 +124,10 @@ export default async function OverviewPage({ params, searchParams }: { params: P
             <option value="oldest">oldest first</option>
           </select>
         </label>
-        <button type="submit" className="rounded-md bg-slate-900 px-3 py-1.5 font-medium text-white dark:bg-slate-100 dark:text-slate-900">
+        <button
+          type="submit"
+          className="rounded-md bg-slate-900 px-3 py-1.5 font-medium text-white dark:bg-slate-100 dark:text-slate-900"
+        >
           Apply
         </button>
         {filtered ? (
@@ -130,24 +152,45 @@ export default async function OverviewPage({ params, searchParams }: { params: P
               <caption className="sr-only">Builds, {query.sort === 'newest' ? 'newest' : 'oldest'} first</caption>
               <thead className="text-xs uppercase tracking-wide text-slate-500">
                 <tr>
-                  <th scope="col" className="py-2 pr-3">Verdict</th>
-                  <th scope="col" className="py-2 pr-3">Project</th>
-                  <th scope="col" className="py-2 pr-3">Build</th>
-                  <th scope="col" className="py-2 pr-3">Branch · commit</th>
-                  <th scope="col" className="py-2 pr-3">Cases failing</th>
-                  <th scope="col" className="py-2 pr-3">Worst finding</th>
-                  <th scope="col" className="py-2">When</th>
+                  <th scope="col" className="py-2 pr-3">
+                    Verdict
+                  </th>
+                  <th scope="col" className="py-2 pr-3">
+                    Project
+                  </th>
+                  <th scope="col" className="py-2 pr-3">
+                    Build
+                  </th>
+                  <th scope="col" className="py-2 pr-3">
+                    Branch · commit
+                  </th>
+                  <th scope="col" className="py-2 pr-3">
+                    Cases failing
+                  </th>
+                  <th scope="col" className="py-2 pr-3">
+                    Worst finding
+                  </th>
+                  <th scope="col" className="py-2">
+                    When
+                  </th>
                 </tr>
               </thead>
               <tbody className="divide-y divide-slate-100 dark:divide-slate-800">
                 {data.rows.map((b) => (
                   <tr key={b.buildId} className="align-top">
-                    <td className="py-2 pr-3"><VerdictBadge verdict={b.verdict} /></td>
                     <td className="py-2 pr-3">
-                      <Link className="hover:underline" href={`${base}/projects/${b.projectSlug}`}>{b.projectName}</Link>
+                      <VerdictBadge verdict={b.verdict} />
+                    </td>
+                    <td className="py-2 pr-3">
+                      <Link className="hover:underline" href={`${base}/projects/${b.projectSlug}`}>
+                        {b.projectName}
+                      </Link>
                     </td>
                     <td className="py-2 pr-3 font-mono">
-                      <Link className="text-sky-700 hover:underline dark:text-sky-400" href={`${base}/projects/${b.projectSlug}/builds/${encodeURIComponent(b.key)}`}>
+                      <Link
+                        className="text-sky-700 hover:underline dark:text-sky-400"
+                        href={`${base}/projects/${b.projectSlug}/builds/${encodeURIComponent(b.key)}`}
+                      >
                         {b.key}
                       </Link>
                     </td>
@@ -159,7 +202,9 @@ export default async function OverviewPage({ params, searchParams }: { params: P
                     </td>
                     <td className="max-w-md py-2 pr-3">
                       {b.worstFinding && b.worstRunId ? (
-                        <Link className="hover:underline" href={`${base}/runs/${b.worstRunId}`}>{b.worstFinding}</Link>
+                        <Link className="hover:underline" href={`${base}/runs/${b.worstRunId}`}>
+                          {b.worstFinding}
+                        </Link>
                       ) : (
                         <span className="text-slate-400">—</span>
                       )}
@@ -173,11 +218,16 @@ export default async function OverviewPage({ params, searchParams }: { params: P
             </table>
           </div>
         )}
-        <Pager page={query.page} hasNext={query.page * data.pageSize < data.total} href={(p) => `${base}${queryString(query, p)}`} label="Build pages" />
+        <Pager
+          page={query.page}
+          hasNext={query.page * data.pageSize < data.total}
+          href={(p) => `${base}${queryString(query, p)}`}
+          label="Build pages"
+        />
       </Card>
       <p className="text-xs text-slate-500">
-        Verdicts say whether the snapshots show spurious oscillation, bound violations or drift under each case&apos;s policy. A pass does
-        not validate the physics or the accuracy of a solver.
+        Verdicts say whether the snapshots show spurious oscillation, bound violations or drift under each case&apos;s
+        policy. A pass does not validate the physics or the accuracy of a solver.
       </p>
     </div>
   );

@@ -16,7 +16,9 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
     return (
       <div className="space-y-6">
         <h1 className="text-2xl font-semibold">Invitation</h1>
-        <Notice tone="error">This invitation has expired, was revoked or was already used. Ask the workspace admin for a new one.</Notice>
+        <Notice tone="error">
+          This invitation has expired, was revoked or was already used. Ask the workspace admin for a new one.
+        </Notice>
       </div>
     );
   }
@@ -40,7 +42,10 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
             <JoinForm token={token} needsAccount email={invitation.email} />
             <p className="text-sm text-slate-500">
               Already have an account for {invitation.email}?{' '}
-              <Link className="text-sky-700 hover:underline" href={`/sign-in?next=${encodeURIComponent(`/invite/${token}`)}`}>
+              <Link
+                className="text-sky-700 hover:underline"
+                href={`/sign-in?next=${encodeURIComponent(`/invite/${token}`)}`}
+              >
                 Sign in first
               </Link>
               .

@@ -11,7 +11,13 @@ export default async function ResetConfirmPage({ searchParams }: { searchParams:
   return (
     <div className="space-y-6">
       <h1 className="text-2xl font-semibold">Choose a new password</h1>
-      <Card>{token ? <NewPasswordForm token={token} /> : <Notice tone="error">This link is incomplete. Ask for a new one.</Notice>}</Card>
+      <Card>
+        {token ? (
+          <NewPasswordForm token={token} />
+        ) : (
+          <Notice tone="error">This link is incomplete. Ask for a new one.</Notice>
+        )}
+      </Card>
     </div>
   );
 }

@@ -15,7 +15,13 @@ export default async function SignInLinkPage({ searchParams }: { searchParams: P
   return (
     <div className="space-y-6">
       <h1 className="text-2xl font-semibold">Sign in with your link</h1>
-      <Card>{token ? <ConfirmLinkForm token={token} /> : <Notice tone="error">This link is incomplete. Ask for a new one on the sign-in page.</Notice>}</Card>
+      <Card>
+        {token ? (
+          <ConfirmLinkForm token={token} />
+        ) : (
+          <Notice tone="error">This link is incomplete. Ask for a new one on the sign-in page.</Notice>
+        )}
+      </Card>
     </div>
   );
 }

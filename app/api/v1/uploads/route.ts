@@ -11,5 +11,8 @@ export const POST = route(async (request) => {
   const caller = await requireCaller(request);
   const body = parseOrThrow(presignRequestSchema, 'upload', await readJson(request));
   const scope = await resolveProjectScope(caller, body, 'maintainer');
-  return json({ upload: await presignUpload({ scope, fileName: body.fileName, size: body.size, contentType: body.contentType }) }, 201);
+  return json(
+    { upload: await presignUpload({ scope, fileName: body.fileName, size: body.size, contentType: body.contentType }) },
+    201,
+  );
 });

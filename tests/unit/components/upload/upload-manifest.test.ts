@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { EMPTY_MANIFEST_FORM, buildManifest, contentTypeFor, defaultBuildKey, formatBytes, isAcceptedFile } from '@/src/components/upload/upload-manifest';
+import {
+  EMPTY_MANIFEST_FORM,
+  buildManifest,
+  contentTypeFor,
+  defaultBuildKey,
+  formatBytes,
+  isAcceptedFile,
+} from '@/src/components/upload/upload-manifest';
 
 describe('upload manifest form', () => {
   it('sends no manifest when nothing is set', () => {
@@ -7,7 +14,9 @@ describe('upload manifest form', () => {
   });
 
   it('names the variables to read', () => {
-    expect(buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'rho, u  v' }).manifest).toEqual({ variables: ['rho', 'u', 'v'] });
+    expect(buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'rho, u  v' }).manifest).toEqual({
+      variables: ['rho', 'u', 'v'],
+    });
   });
 
   it('applies the options to each named variable', () => {
@@ -23,14 +32,26 @@ describe('upload manifest form', () => {
     expect(errors).toEqual({});
     expect(manifest).toEqual({
       variables: ['c'],
-      variableOptions: { c: { periodic: { x: true, y: true }, bounds: { lower: 0, upper: 1 }, velocitySign: -1, system: true, conservative: false } },
+      variableOptions: {
+        c: {
+          periodic: { x: true, y: true },
+          bounds: { lower: 0, upper: 1 },
+          velocitySign: -1,
+          system: true,
+          conservative: false,
+        },
+      },
     });
   });
 
   it('refuses options without a variable name, bad numbers and crossed bounds', () => {
     expect(buildManifest({ ...EMPTY_MANIFEST_FORM, system: true }).errors.variables).toMatch(/Name the variable/);
-    expect(buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'c', lowerBound: 'zero' }).errors.lowerBound).toMatch(/number/);
-    expect(buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'c', lowerBound: '2', upperBound: '1' }).errors.upperBound).toMatch(/below the lower/);
+    expect(buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'c', lowerBound: 'zero' }).errors.lowerBound).toMatch(
+      /number/,
+    );
+    expect(
+      buildManifest({ ...EMPTY_MANIFEST_FORM, variables: 'c', lowerBound: '2', upperBound: '1' }).errors.upperBound,
+    ).toMatch(/below the lower/);
   });
 
   it('refuses a repeated variable name with the readers own schema', () => {

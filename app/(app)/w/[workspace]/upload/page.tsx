@@ -18,7 +18,8 @@ export default async function UploadPage({ params }: { params: Promise<{ workspa
       <div>
         <h1 className="text-2xl font-semibold">Upload a snapshot file</h1>
         <p className="mt-1 max-w-3xl text-sm text-slate-600 dark:text-slate-300">
-          The file goes straight to object storage, then it is analysed and judged like a CI upload, with the case&apos;s policy and baseline.
+          The file goes straight to object storage, then it is analysed and judged like a CI upload, with the
+          case&apos;s policy and baseline.
         </p>
       </div>
       <Card>

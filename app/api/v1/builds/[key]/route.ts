@@ -9,6 +9,10 @@ export const dynamic = 'force-dynamic';
 export const GET = route<{ key: string }>(async (request, params) => {
   const caller = await requireCaller(request);
   const query = new URL(request.url).searchParams;
-  const scope = await resolveProjectScope(caller, { project: query.get('project') ?? undefined, workspace: query.get('workspace') ?? undefined }, 'viewer');
+  const scope = await resolveProjectScope(
+    caller,
+    { project: query.get('project') ?? undefined, workspace: query.get('workspace') ?? undefined },
+    'viewer',
+  );
   return json(await getBuildReport(scope, decodeURIComponent(params.key)));
 });

@@ -12,7 +12,10 @@ import { saveProjectSettings } from '@/src/server/services/policies';
 export async function saveProjectSettingsAction(input: unknown): Promise<PolicySaveState> {
   const parsed = projectSettingsInputSchema.safeParse(input);
   if (!parsed.success) {
-    return { message: 'Some fields need attention.', fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]> };
+    return {
+      message: 'Some fields need attention.',
+      fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]>,
+    };
   }
   const { workspace, project, name, defaultBranch, values } = parsed.data;
   try {
@@ -20,7 +23,10 @@ export async function saveProjectSettingsAction(input: unknown): Promise<PolicyS
     await saveProjectSettings(member, { projectSlug: project, name, defaultBranch, values });
   } catch (err) {
     if (err instanceof AppError) {
-      return { message: err.message, fieldErrors: (err.details as { fieldErrors?: Record<string, string[]> } | undefined)?.fieldErrors };
+      return {
+        message: err.message,
+        fieldErrors: (err.details as { fieldErrors?: Record<string, string[]> } | undefined)?.fieldErrors,
+      };
     }
     throw err;
   }

@@ -11,7 +11,11 @@ export const metadata: Metadata = { title: 'Project settings' };
 export const dynamic = 'force-dynamic';
 
 /** Maintainers only: a viewer gets the same 404 as for a project that does not exist. */
-export default async function ProjectSettingsPage({ params }: { params: Promise<{ workspace: string; project: string }> }) {
+export default async function ProjectSettingsPage({
+  params,
+}: {
+  params: Promise<{ workspace: string; project: string }>;
+}) {
   const { workspace, project: slug } = await params;
   const ctx = await requireMember(workspace, 'maintainer');
   const { project } = await getProjectSettingsPage(ctx, slug);

@@ -22,7 +22,10 @@ function refusal(err: unknown): { message: string; fieldErrors?: Record<string, 
 }
 
 function badInput(error: z.ZodError): { message: string; fieldErrors: Record<string, string[]> } {
-  return { message: 'The form did not arrive intact; reload the page and try again.', fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]> };
+  return {
+    message: 'The form did not arrive intact; reload the page and try again.',
+    fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]>,
+  };
 }
 
 /** Re-judges the latest analysed run with the candidate policy; stores nothing. */

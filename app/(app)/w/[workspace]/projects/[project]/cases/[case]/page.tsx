@@ -18,9 +18,23 @@ export async function generateMetadata({ params }: { params: Promise<Params> }):
   return { title: `Case ${decodeURIComponent((await params).case)}` };
 }
 
-function History({ rows, total, runLink, buildLink }: { rows: CaseHistoryRow[]; total: number; runLink: (id: string) => string; buildLink: (key: string) => string }) {
+function History({
+  rows,
+  total,
+  runLink,
+  buildLink,
+}: {
+  rows: CaseHistoryRow[];
+  total: number;
+  runLink: (id: string) => string;
+  buildLink: (key: string) => string;
+}) {
   if (rows.length === 0) {
-    return <p className="text-sm text-slate-500 dark:text-slate-400">No runs yet. A CI upload or a manual upload that names this case adds one.</p>;
+    return (
+      <p className="text-sm text-slate-500 dark:text-slate-400">
+        No runs yet. A CI upload or a manual upload that names this case adds one.
+      </p>
+    );
   }
   return (
     <div className="overflow-x-auto">
@@ -28,18 +42,32 @@ function History({ rows, total, runLink, buildLink }: { rows: CaseHistoryRow[]; 
         <caption className="sr-only">Recent runs of this case, newest first</caption>
         <thead className="text-xs uppercase tracking-wide text-slate-500 dark:text-slate-400">
           <tr>
-            <th scope="col" className="py-2 pr-3">Run</th>
-            <th scope="col" className="py-2 pr-3">Build</th>
-            <th scope="col" className="py-2 pr-3">Branch</th>
-            <th scope="col" className="py-2 pr-3">Verdict</th>
-            <th scope="col" className="py-2">Worst finding</th>
+            <th scope="col" className="py-2 pr-3">
+              Run
+            </th>
+            <th scope="col" className="py-2 pr-3">
+              Build
+            </th>
+            <th scope="col" className="py-2 pr-3">
+              Branch
+            </th>
+            <th scope="col" className="py-2 pr-3">
+              Verdict
+            </th>
+            <th scope="col" className="py-2">
+              Worst finding
+            </th>
           </tr>
         </thead>
         <tbody className="divide-y divide-slate-100 dark:divide-slate-800">
           {rows.map((r) => (
             <tr key={r.runId} className="align-top">
               <td className="py-2 pr-3 whitespace-nowrap">
-                <Link href={runLink(r.runId)} className="text-sky-700 hover:underline dark:text-sky-400" title={formatDateTime(r.createdAt)}>
+                <Link
+                  href={runLink(r.runId)}
+                  className="text-sky-700 hover:underline dark:text-sky-400"
+                  title={formatDateTime(r.createdAt)}
+                >
                   {formatAgo(r.createdAt)}
                 </Link>
               </td>
@@ -47,18 +75,26 @@ function History({ rows, total, runLink, buildLink }: { rows: CaseHistoryRow[]; 
                 <Link href={buildLink(r.buildKey)} className="font-mono hover:underline">
                   {r.buildKey}
                 </Link>
-                <span className="block font-mono text-xs text-slate-500 dark:text-slate-400">{shortCommit(r.commit)}</span>
+                <span className="block font-mono text-xs text-slate-500 dark:text-slate-400">
+                  {shortCommit(r.commit)}
+                </span>
               </td>
               <td className="py-2 pr-3 font-mono">{r.branch}</td>
               <td className="py-2 pr-3">
                 <VerdictBadge verdict={r.verdict} status={r.status} />
               </td>
-              <td className="py-2 text-slate-700 dark:text-slate-300">{r.status === 'error' ? r.errorMessage : (r.worstFinding ?? '—')}</td>
+              <td className="py-2 text-slate-700 dark:text-slate-300">
+                {r.status === 'error' ? r.errorMessage : (r.worstFinding ?? '—')}
+              </td>
             </tr>
           ))}
         </tbody>
       </table>
-      {total > rows.length ? <p className="mt-2 text-xs text-slate-500 dark:text-slate-400">The newest {rows.length} of {total} runs.</p> : null}
+      {total > rows.length ? (
+        <p className="mt-2 text-xs text-slate-500 dark:text-slate-400">
+          The newest {rows.length} of {total} runs.
+        </p>
+      ) : null}
     </div>
   );
 }
@@ -89,14 +125,17 @@ export default async function CasePage({ params }: { params: Promise<Params> }) 
         </p>
         <h1 className="break-all text-2xl font-semibold">{view.kase.name}</h1>
         <p className="mt-1 text-sm text-slate-500 dark:text-slate-400">
-          {view.totalRuns} run{view.totalRuns === 1 ? '' : 's'} · default branch <span className="font-mono">{view.project.defaultBranch}</span>
+          {view.totalRuns} run{view.totalRuns === 1 ? '' : 's'} · default branch{' '}
+          <span className="font-mono">{view.project.defaultBranch}</span>
         </p>
       </div>
 
       <div className="grid items-start gap-6 lg:grid-cols-2">
         <Card title="Baselines">
           {view.baselines.length === 0 ? (
-            <p className="text-sm text-slate-500 dark:text-slate-400">No baseline accepted yet: runs are judged by the policy alone.</p>
+            <p className="text-sm text-slate-500 dark:text-slate-400">
+              No baseline accepted yet: runs are judged by the policy alone.
+            </p>
           ) : (
             <ul className="divide-y divide-slate-100 text-sm dark:divide-slate-800" data-testid="case-baselines">
               {view.baselines.map((b) => (
@@ -129,11 +168,20 @@ export default async function CasePage({ params }: { params: Promise<Params> }) 
                 <span className="text-xs text-slate-500 dark:text-slate-400">{formatDateTime(latest.createdAt)}</span>
               </p>
             ) : (
-              <p className="text-sm text-slate-500 dark:text-slate-400">No analysed run yet, so there is nothing to accept as a baseline or to preview a policy on.</p>
+              <p className="text-sm text-slate-500 dark:text-slate-400">
+                No analysed run yet, so there is nothing to accept as a baseline or to preview a policy on.
+              </p>
             )}
           </Card>
           {latest ? (
-            <AcceptBaselinePanel workspace={workspace} project={view.project.slug} caseName={view.kase.name} runId={latest.runId} branch={latest.branch} canAccept={view.canEdit} />
+            <AcceptBaselinePanel
+              workspace={workspace}
+              project={view.project.slug}
+              caseName={view.kase.name}
+              runId={latest.runId}
+              branch={latest.branch}
+              canAccept={view.canEdit}
+            />
           ) : null}
         </div>
       </div>
@@ -150,7 +198,11 @@ export default async function CasePage({ params }: { params: Promise<Params> }) 
           initialValues={policyToFormValues(view.kase.policy)}
           projectPolicy={view.project.defaultPolicy}
           readOnly={!view.canEdit}
-          latestRun={latest ? { id: latest.runId, buildKey: latest.buildKey, branch: latest.branch, verdict: latest.verdict } : null}
+          latestRun={
+            latest
+              ? { id: latest.runId, buildKey: latest.buildKey, branch: latest.branch, verdict: latest.verdict }
+              : null
+          }
           previewAction={previewCasePolicyAction}
           saveAction={saveCasePolicyAction}
         />
