@@ -286,6 +286,27 @@ describe('run page in Chromium', () => {
     expect(errors).toEqual([]);
   });
 
+  it('offers no baseline control to a viewer, and lets a maintainer accept the failing run after a comparison', async () => {
+    await page.goto(`${appUrl()}/w/${workspace}/runs/${failingRun}`);
+    await expect(page.getByTestId('baseline-panel').count()).resolves.toBe(1);
+    await expect(page.getByRole('button', { name: /Accept as baseline/ }).count()).resolves.toBe(0);
+
+    const maintainer = await createTestUser({ workspaceId: project.workspaceId, role: 'maintainer' });
+    const own = await browser.newPage({ viewport: { width: 1360, height: 1000 } });
+    await signInSettled(own, maintainer);
+    await own.goto(`${appUrl()}/w/${workspace}/runs/${failingRun}`);
+    const panel = own.getByTestId('baseline-panel');
+    await expect(panel.textContent()).resolves.toContain('Current baseline');
+    await panel.getByRole('button', { name: 'Accept as baseline…' }).click();
+    const dialog = own.getByRole('dialog');
+    // The confirmation compares this run's key metrics with the accepted run's before anything changes.
+    await expect(dialog.getByTestId('baseline-comparison').locator('tbody tr').count()).resolves.toBeGreaterThan(0);
+    await screenshot(own, 'run-page-baseline-confirm');
+    await dialog.getByRole('button', { name: 'Accept as baseline' }).click();
+    await panel.getByText('This run is the baseline').waitFor();
+    await own.close();
+  });
+
   it('raised no script errors on any page it opened', () => {
     expect(pageErrors).toEqual([]);
   });

@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
+import { AcceptBaselinePanel } from '@/src/components/baseline/accept-baseline';
 import { RunDownloads } from '@/src/components/run/run-downloads';
 import { RunExplorer } from '@/src/components/run/run-explorer';
 import { RunHeader } from '@/src/components/run/run-header';
@@ -8,6 +9,7 @@ import { Card } from '@/src/components/ui/card';
 import { Notice } from '@/src/components/ui/notice';
 import { initialSelection } from '@/src/lib/run-selection';
 import { runIdSchema } from '@/src/schemas/runs';
+import { roleAtLeast } from '@/src/server/auth/roles';
 import { requireMember } from '@/src/server/auth/session';
 import { getRunPage } from '@/src/server/services/run-page';
 
@@ -53,6 +55,16 @@ export default async function RunPage({ params, searchParams }: RunPageProps) {
       ) : null}
 
       {run.status === 'done' && selection ? <RunExplorer data={data} initial={selection} /> : null}
+      {run.status === 'done' ? (
+        <AcceptBaselinePanel
+          workspace={ctx.workspace.slug}
+          project={data.project.slug}
+          caseName={data.caseName}
+          runId={run.id}
+          branch={data.build.branch}
+          canAccept={roleAtLeast(ctx.role, 'maintainer')}
+        />
+      ) : null}
       {run.status === 'done' && !selection ? (
         <Card>
           <p className="text-sm text-slate-600 dark:text-slate-400" data-testid="run-empty">
