@@ -231,6 +231,11 @@ export async function consumeSignInToken(
 
 // ------------------------------------------------------------------ invitations
 
+/** An invitation that can still be used: not accepted, not revoked, not expired. */
+function liveInvitation() {
+  return [isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())];
+}
+
 export async function insertInvitation(input: {
   workspaceId: string;
   email: string;
@@ -251,14 +256,7 @@ export async function getLiveInvitationByHash({ tokenHash }: { tokenHash: string
     .select({ invitation: invitations, workspaceSlug: workspaces.slug, workspaceName: workspaces.name })
     .from(invitations)
     .innerJoin(workspaces, eq(workspaces.id, invitations.workspaceId))
-    .where(
-      and(
-        eq(invitations.tokenHash, tokenHash),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-        gt(invitations.expiresAt, new Date()),
-      ),
-    )
+    .where(and(eq(invitations.tokenHash, tokenHash), ...liveInvitation()))
     .limit(1);
   return rows[0];
 }
@@ -268,31 +266,9 @@ export async function markInvitationAccepted({ id }: { id: string }, db: Executo
   const rows = await db
     .update(invitations)
     .set({ acceptedAt: new Date() })
-    .where(
-      and(
-        eq(invitations.id, id),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-        gt(invitations.expiresAt, new Date()),
-      ),
-    )
+    .where(and(eq(invitations.id, id), ...liveInvitation()))
     .returning({ id: invitations.id });
   return rows.length > 0;
-}
-
-export async function listPendingInvitations({ workspaceId }: { workspaceId: string }): Promise<Invitation[]> {
-  return getDb()
-    .select()
-    .from(invitations)
-    .where(
-      and(
-        eq(invitations.workspaceId, workspaceId),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-        gt(invitations.expiresAt, new Date()),
-      ),
-    )
-    .orderBy(asc(invitations.createdAt));
 }
 
 export async function revokeInvitation(
@@ -342,14 +318,7 @@ export async function listPendingInvitationRows({
     })
     .from(invitations)
     .leftJoin(inviter, eq(inviter.id, invitations.invitedBy))
-    .where(
-      and(
-        eq(invitations.workspaceId, workspaceId),
-        isNull(invitations.acceptedAt),
-        isNull(invitations.revokedAt),
-        gt(invitations.expiresAt, new Date()),
-      ),
-    )
+    .where(and(eq(invitations.workspaceId, workspaceId), ...liveInvitation()))
     .orderBy(asc(invitations.createdAt));
 }
 
