@@ -37,10 +37,15 @@ async function linksRecentlySent(email: string): Promise<number> {
 }
 
 /**
- * Mails a one-time sign-in link when the account exists. The answer is the same either way, so
- * the form does not reveal who has an account.
+ * Mails a one-time link (sign-in or password reset) when the account exists. The answer is the
+ * same either way, so the forms do not reveal who has an account.
  */
-export async function requestSignInLink(rawEmail: string): Promise<void> {
+async function mailOneTimeLink(
+  rawEmail: string,
+  purpose: 'sign-in' | 'reset',
+  ttlMs: number,
+  send: (to: string, secret: string) => Promise<void>,
+): Promise<void> {
   const email = normaliseEmail(rawEmail);
   const user = await getUserByEmail({ email });
   if (!user || (await linksRecentlySent(email)) >= MAX_LINKS_PER_WINDOW) return;
@@ -48,26 +53,19 @@ export async function requestSignInLink(rawEmail: string): Promise<void> {
   await insertSignInToken({
     email,
     userId: user.id,
-    purpose: 'sign-in',
+    purpose,
     tokenHash: hash,
-    expiresAt: new Date(Date.now() + SIGN_IN_LINK_TTL_MS),
+    expiresAt: new Date(Date.now() + ttlMs),
   });
-  await sendSignInLink(email, secret);
+  await send(email, secret);
 }
 
-export async function requestPasswordReset(rawEmail: string): Promise<void> {
-  const email = normaliseEmail(rawEmail);
-  const user = await getUserByEmail({ email });
-  if (!user || (await linksRecentlySent(email)) >= MAX_LINKS_PER_WINDOW) return;
-  const { secret, hash } = newLinkSecret();
-  await insertSignInToken({
-    email,
-    userId: user.id,
-    purpose: 'reset',
-    tokenHash: hash,
-    expiresAt: new Date(Date.now() + RESET_LINK_TTL_MS),
-  });
-  await sendPasswordReset(email, secret);
+export function requestSignInLink(rawEmail: string): Promise<void> {
+  return mailOneTimeLink(rawEmail, 'sign-in', SIGN_IN_LINK_TTL_MS, sendSignInLink);
+}
+
+export function requestPasswordReset(rawEmail: string): Promise<void> {
+  return mailOneTimeLink(rawEmail, 'reset', RESET_LINK_TTL_MS, sendPasswordReset);
 }
 
 /** Sets a new password from a reset link. A refused password rolls back, so the link stays usable for a second try. */
