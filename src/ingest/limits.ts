@@ -42,7 +42,7 @@ export const DEFAULT_INGEST_LIMITS: Readonly<IngestLimits> = Object.freeze({
  * module (which validates the environment once and passes the numbers in).
  */
 export const INGEST_LIMIT_ENV: Readonly<Record<keyof IngestLimits, string>> = Object.freeze({
-  maxFileBytes: 'VARIGATE_MAX_UPLOAD_BYTES',
+  maxFileBytes: 'VARIGATE_MAX_OBJECT_BYTES',
   maxUncompressedBytes: 'VARIGATE_MAX_UNCOMPRESSED_BYTES',
   maxCellsPerStep: 'VARIGATE_MAX_CELLS_PER_STEP',
   maxSteps: 'VARIGATE_MAX_STEPS',
@@ -63,6 +63,27 @@ export const ingestLimitsSchema = z.object({
   maxWideLayoutBytes: positiveInt.optional(),
   maxHeaderBytes: positiveInt.optional(),
 });
+
+/**
+ * The overrides an environment sets (INGEST_LIMIT_ENV names), validated; unset names keep their
+ * defaults. A malformed value is an error naming the variable, so a typo never silently removes
+ * a limit.
+ */
+export function ingestLimitsFromEnv(env: Record<string, string | undefined>): Partial<IngestLimits> {
+  const out: Partial<IngestLimits> = {};
+  for (const [key, name] of Object.entries(INGEST_LIMIT_ENV) as [keyof IngestLimits, string][]) {
+    const raw = env[name]?.trim();
+    if (!raw) continue;
+    const value = Number(raw);
+    if (!Number.isSafeInteger(value) || value <= 0) {
+      throw new RangeError(
+        `${name} must be a positive whole number of ${key.endsWith('Bytes') ? 'bytes' : 'items'}, got "${raw}"`,
+      );
+    }
+    out[key] = value;
+  }
+  return out;
+}
 
 /** Defaults with the given overrides applied; undefined entries keep the default. */
 export function resolveIngestLimits(overrides: Partial<IngestLimits> = {}): IngestLimits {

@@ -1,9 +1,25 @@
 import 'server-only';
-import { isReadError, openSnapshots, withTempFile, type IngestManifest, type SnapshotReader } from '@/src/ingest';
+import {
+  isReadError,
+  openSnapshots,
+  withTempFile,
+  type IngestLimits,
+  type IngestManifest,
+  type SnapshotReader,
+} from '@/src/ingest';
+import { ingestLimitsFromEnv } from '@/src/ingest/limits';
 import { ingestManifestSchema } from '@/src/ingest/manifest';
 import type { Upload } from '@/db/schema';
 import { AppError } from '../errors';
 import { getObjectStream } from '../storage';
+
+let limits: Partial<IngestLimits> | undefined;
+
+/** The readers' limits as this deployment's environment sets them (read once). */
+export function configuredIngestLimits(): Partial<IngestLimits> {
+  limits ??= ingestLimitsFromEnv(process.env);
+  return limits;
+}
 
 /**
  * Opens a stored upload through the readers: copies the object to a private temp file (HDF5
@@ -21,6 +37,7 @@ export async function withStoredSnapshots<T>(
     stream,
     async (path) => {
       const reader = await openSnapshots({
+        limits: configuredIngestLimits(),
         path,
         fileName: upload.fileName,
         declaredFormat: upload.format ?? undefined,
