@@ -420,3 +420,18 @@ export const mailDeliveries = pgTable(
   (t) => [index('mail_deliveries_workspace_created_idx').on(t.workspaceId, t.createdAt)],
 );
 export type MailDelivery = typeof mailDeliveries.$inferSelect;
+
+/** People's notes on a run ("flux limiter change in 9c1e2f0; expected", "reran with dt/2"). */
+export const runNotes = pgTable(
+  'run_notes',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    workspaceId: workspaceRef(),
+    runId: runRef(),
+    authorId: uuid('author_id').references(() => users.id, { onDelete: 'set null' }),
+    body: text('body').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index('run_notes_run_idx').on(t.runId, t.createdAt)],
+);
+export type RunNote = typeof runNotes.$inferSelect;

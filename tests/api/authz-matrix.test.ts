@@ -33,7 +33,7 @@ import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { getDb } from '@/db/client';
-import { auditEvents, subscriptions } from '@/db/schema';
+import { auditEvents, runNotes, subscriptions } from '@/db/schema';
 import { and, count, eq } from 'drizzle-orm';
 import { getBuildByKey } from '@/src/server/queries/builds';
 import { getCaseByName, getProjectBySlug } from '@/src/server/queries/projects';
@@ -369,6 +369,17 @@ const ACTIONS: Record<string, ActionRow> = {
     },
     expect: MAINTAINERS,
   },
+  'app/(app)/w/[workspace]/runs/[run]/actions.ts#addRunNoteAction': {
+    behaviour: 'every member, viewers included, annotates runs of their workspace',
+    prepare: async (f) => {
+      const before = await countRunNotes(f.doneRunId);
+      return {
+        args: formArgs({ workspace: f.workspace, runId: f.doneRunId, body: 'reran with half the time step' }),
+        wrote: async () => (await countRunNotes(f.doneRunId)) > before,
+      };
+    },
+    expect: MEMBERS,
+  },
   'app/(app)/w/[workspace]/settings/notifications/actions.ts#saveMySubscriptionAction': {
     behaviour: 'every member, viewers included, sets their own digest subscription',
     prepare: async (f) => {
@@ -505,6 +516,11 @@ async function countAudit(workspaceId: string, action: string): Promise<number> 
     .select({ n: count() })
     .from(auditEvents)
     .where(and(eq(auditEvents.workspaceId, workspaceId), eq(auditEvents.action, action)));
+  return row?.n ?? 0;
+}
+
+async function countRunNotes(runId: string): Promise<number> {
+  const [row] = await getDb().select({ n: count() }).from(runNotes).where(eq(runNotes.runId, runId));
   return row?.n ?? 0;
 }
 

@@ -286,6 +286,17 @@ describe('run page in Chromium', () => {
     expect(errors).toEqual([]);
   });
 
+  it('lets a viewer note something on the run, shown with their name', async () => {
+    await page.goto(`${appUrl()}/w/${workspace}/runs/${failingRun}`);
+    const form = page.getByRole('form', { name: 'Add a note' });
+    await form
+      .getByLabel('Add a note')
+      .fill('Oscillation starts where the limiter was switched off; see the scheme change.');
+    await form.getByRole('button', { name: 'Save note' }).click();
+    await page.getByTestId('run-notes').getByText('limiter was switched off').waitFor();
+    await expect(page.getByTestId('run-notes').textContent()).resolves.toContain('Test person');
+  });
+
   it('offers no baseline control to a viewer, and lets a maintainer accept the failing run after a comparison', async () => {
     await page.goto(`${appUrl()}/w/${workspace}/runs/${failingRun}`);
     await expect(page.getByTestId('baseline-panel').count()).resolves.toBe(1);

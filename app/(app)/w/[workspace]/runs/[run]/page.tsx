@@ -4,6 +4,7 @@ import { AcceptBaselinePanel } from '@/src/components/baseline/accept-baseline';
 import { RunDownloads } from '@/src/components/run/run-downloads';
 import { RunExplorer } from '@/src/components/run/run-explorer';
 import { RunHeader } from '@/src/components/run/run-header';
+import { RunNotes } from '@/src/components/run/run-notes';
 import { RunWaiting } from '@/src/components/run/run-waiting';
 import { Card } from '@/src/components/ui/card';
 import { Notice } from '@/src/components/ui/notice';
@@ -11,6 +12,7 @@ import { initialSelection } from '@/src/lib/run-selection';
 import { runIdSchema } from '@/src/schemas/runs';
 import { roleAtLeast } from '@/src/server/auth/roles';
 import { requireMember } from '@/src/server/auth/session';
+import { getRunNotes } from '@/src/server/services/run-notes';
 import { getRunPage } from '@/src/server/services/run-page';
 
 export const metadata: Metadata = { title: 'Run' };
@@ -29,6 +31,7 @@ export default async function RunPage({ params, searchParams }: RunPageProps) {
   if (!runIdSchema.safeParse(runId).success) notFound();
   const data = await getRunPage({ workspaceId: ctx.workspace.id, workspaceSlug: ctx.workspace.slug, runId });
   if (!data) notFound();
+  const notes = await getRunNotes(ctx.workspace.id, runId);
   const selection = initialSelection(data.variables, data.findings, await searchParams);
   const { run } = data;
   const waiting = run.status === 'queued' || run.status === 'analysing';
@@ -72,6 +75,8 @@ export default async function RunPage({ params, searchParams }: RunPageProps) {
           </p>
         </Card>
       ) : null}
+
+      <RunNotes workspace={ctx.workspace.slug} runId={run.id} notes={notes} />
 
       <p className="max-w-3xl text-xs text-slate-500 dark:text-slate-400" data-testid="checks-note">
         {data.note}
