@@ -2,6 +2,7 @@ import 'server-only';
 import { Readable } from 'node:stream';
 import {
   GetObjectCommand,
+  ListObjectsV2Command,
   HeadBucketCommand,
   HeadObjectCommand,
   PutObjectCommand,
@@ -99,4 +100,26 @@ export async function presignGet(input: { key: string; fileName?: string; expire
 
 export async function checkStorage(): Promise<void> {
   await s3().send(new HeadBucketCommand({ Bucket: bucket() }));
+}
+
+export interface StoredObjectInfo {
+  key: string;
+  lastModified: Date;
+  size: number;
+}
+
+/** Every object under `prefix`, a page (up to 1,000) at a time. */
+export async function* listObjects(prefix: string): AsyncGenerator<StoredObjectInfo[]> {
+  let token: string | undefined;
+  do {
+    const res = await s3().send(
+      new ListObjectsV2Command({ Bucket: bucket(), Prefix: prefix, ContinuationToken: token }),
+    );
+    yield (res.Contents ?? []).map((o) => ({
+      key: o.Key ?? '',
+      lastModified: o.LastModified ?? new Date(0),
+      size: o.Size ?? 0,
+    }));
+    token = res.IsTruncated ? res.NextContinuationToken : undefined;
+  } while (token);
 }

@@ -9,6 +9,9 @@ export const DIGEST_TICK_JOB = 'digest-tick';
 export const SEND_DIGEST_JOB = 'send-digest';
 /** Finds the newly failing cases of a build and claims one alert delivery per subscriber. */
 export const BUILD_ALERTS_JOB = 'build-alerts';
+/** Hourly housekeeping run by the same tick: removes uploads no run refers to. */
+export const SWEEP_UPLOADS_JOB = 'sweep-uploads';
+export const sweepUploadsKey = (hour: Date): string => `sweep-uploads:${hour.toISOString()}`;
 /** Sends one claimed delivery through SMTP, with retries and backoff. */
 export const DELIVER_MAIL_JOB = 'deliver-mail';
 

@@ -1,5 +1,5 @@
 import 'server-only';
-import { and, asc, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import { getDb, type Executor } from '@/db/client';
 import { worstFindingOrder } from './finding-order';
 import {
@@ -216,4 +216,11 @@ export async function replaceRunResults(
       finishedAt: new Date(),
     })
     .where(and(eq(runs.workspaceId, workspaceId), eq(runs.id, runId)));
+}
+
+/** Which of these object keys an upload row refers to (the worker's sweep, across workspaces). */
+export async function listReferencedObjectKeysGlobal({ keys }: { keys: string[] }): Promise<Set<string>> {
+  if (keys.length === 0) return new Set();
+  const rows = await getDb().select({ key: uploads.objectKey }).from(uploads).where(inArray(uploads.objectKey, keys));
+  return new Set(rows.map((r) => r.key));
 }

@@ -8,10 +8,12 @@ import { env } from '../env';
 import {
   DIGEST_TICK_JOB,
   SEND_DIGEST_JOB,
+  SWEEP_UPLOADS_JOB,
   digestDeliveryKey,
   digestTickKey,
   previewDeliveryKey,
   sendDigestKey,
+  sweepUploadsKey,
 } from '../jobs/notification-names';
 import { logger } from '../logger';
 import {
@@ -66,6 +68,8 @@ export async function runDigestTick({ now = new Date() }: { now?: Date } = {}): 
     runAt: next,
     maxAttempts: 20,
   });
+  // The hourly tick also starts the bucket's housekeeping (one sweep per hour, any number of workers).
+  await enqueue({ kind: SWEEP_UPLOADS_JOB, payload: {}, dedupeKey: sweepUploadsKey(hourStart(now)), maxAttempts: 3 });
   return { due: await enqueueDueDigests({ now }) };
 }
 
