@@ -58,6 +58,8 @@ export const users = pgTable('users', {
   email: text('email').notNull().unique(),
   name: text('name'),
   passwordHash: text('password_hash'),
+  /** Sessions issued before this moment are void (set when the password is reset). */
+  sessionsValidAfter: timestamp('sessions_valid_after', { withTimezone: true }),
   emailVerifiedAt: timestamp('email_verified_at', { withTimezone: true }),
   createdAt: createdAt(),
 });

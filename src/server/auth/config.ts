@@ -77,7 +77,8 @@ const nextAuth: NextAuthResult = NextAuth({
     },
     session({ session, token }) {
       if (typeof token.uid === 'string') session.user.id = token.uid;
-      return session;
+      // When the session was issued (seconds), so a password reset can void older sessions.
+      return { ...session, issuedAt: typeof token.iat === 'number' ? token.iat : 0 };
     },
   },
 });

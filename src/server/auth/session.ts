@@ -3,6 +3,7 @@ import { notFound, redirect } from 'next/navigation';
 import { AppError } from '../errors';
 import { getMembershipBySlug, getUserById, listUserWorkspaces, type WorkspaceMembership } from '../queries/users';
 import { auth } from './config';
+import { sessionRevoked } from './revocation';
 import { roleAtLeast, type Role } from './roles';
 
 /**
@@ -29,7 +30,10 @@ export async function getSessionUser(): Promise<SessionUser | null> {
   const id = session?.user?.id;
   if (!id) return null;
   const user = await getUserById({ id });
-  return user ? { id: user.id, email: user.email, name: user.name } : null;
+  if (!user) return null;
+  const issuedAt = (session as { issuedAt?: number }).issuedAt ?? 0;
+  if (sessionRevoked(issuedAt, user.sessionsValidAfter)) return null;
+  return { id: user.id, email: user.email, name: user.name };
 }
 
 /** For pages: the signed-in user, or a redirect to the sign-in page. */

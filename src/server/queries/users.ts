@@ -52,7 +52,12 @@ export async function setUserPassword(
 ): Promise<void> {
   await db
     .update(users)
-    .set({ passwordHash, emailVerifiedAt: sql`coalesce(${users.emailVerifiedAt}, now())` })
+    // A new password voids every session issued before it: a stolen cookie dies with the reset.
+    .set({
+      passwordHash,
+      emailVerifiedAt: sql`coalesce(${users.emailVerifiedAt}, now())`,
+      sessionsValidAfter: sql`now()`,
+    })
     .where(eq(users.id, id));
 }
 
