@@ -68,13 +68,16 @@ export interface WorkspaceMembership {
   role: Role;
 }
 
-export async function listUserWorkspaces({ userId }: { userId: string }): Promise<WorkspaceMembership[]> {
-  return getDb()
+/** Memberships joined with their workspace, shaped as WorkspaceMembership; callers add the filter. */
+function membershipsWithWorkspace(db: Executor) {
+  return db
     .select({ workspaceId: workspaces.id, slug: workspaces.slug, name: workspaces.name, role: memberships.role })
     .from(memberships)
-    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
-    .where(eq(memberships.userId, userId))
-    .orderBy(asc(workspaces.name));
+    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId));
+}
+
+export async function listUserWorkspaces({ userId }: { userId: string }): Promise<WorkspaceMembership[]> {
+  return membershipsWithWorkspace(getDb()).where(eq(memberships.userId, userId)).orderBy(asc(workspaces.name));
 }
 
 export async function getMembershipBySlug({
@@ -84,10 +87,7 @@ export async function getMembershipBySlug({
   userId: string;
   slug: string;
 }): Promise<WorkspaceMembership | undefined> {
-  const rows = await getDb()
-    .select({ workspaceId: workspaces.id, slug: workspaces.slug, name: workspaces.name, role: memberships.role })
-    .from(memberships)
-    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
+  const rows = await membershipsWithWorkspace(getDb())
     .where(and(eq(memberships.userId, userId), eq(workspaces.slug, slug)))
     .limit(1);
   return rows[0];
@@ -97,10 +97,7 @@ export async function getMembershipById(
   { userId, workspaceId }: { userId: string; workspaceId: string },
   db: Executor = getDb(),
 ): Promise<WorkspaceMembership | undefined> {
-  const rows = await db
-    .select({ workspaceId: workspaces.id, slug: workspaces.slug, name: workspaces.name, role: memberships.role })
-    .from(memberships)
-    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
+  const rows = await membershipsWithWorkspace(db)
     .where(and(eq(memberships.userId, userId), eq(memberships.workspaceId, workspaceId)))
     .limit(1);
   return rows[0];
