@@ -1,7 +1,7 @@
 import 'server-only';
-import { and, asc, eq, sql } from 'drizzle-orm';
+import { and, eq, sql } from 'drizzle-orm';
 import { getDb, type Executor } from '@/db/client';
-import { builds, cases, runs, type Build } from '@/db/schema';
+import { builds, type Build } from '@/db/schema';
 
 export async function getBuildByKey(
   { workspaceId, projectId, key }: { workspaceId: string; projectId: string; key: string },
@@ -45,8 +45,8 @@ async function lockBuild({ buildId }: { buildId: string }, db: Executor): Promis
 }
 
 /**
- * Recomputes a build's verdict as its worst finished run (error > fail > warn > pass) and marks
- * it finished once no run is queued or being analysed. Called in the same transaction that
+ * Recomputes a build's verdict as the worst latest run of its cases (error > fail > warn > pass)
+ * and marks it finished once none of them is queued or being analysed. Called in the same transaction that
  * finishes a run, so the build never shows a verdict its runs do not support.
  */
 export async function refreshBuildVerdict({ buildId }: { buildId: string }, db: Executor = getDb()): Promise<void> {
@@ -60,41 +60,11 @@ export async function refreshBuildVerdict({ buildId }: { buildId: string }, db: 
         (array['pass','warn','fail','error']::verdict[])[max(case r.verdict
             when 'pass' then 1 when 'warn' then 2 when 'fail' then 3 when 'error' then 4 end)] as worst,
         count(*) filter (where r.status in ('queued', 'analysing')) as open
-      from runs r where r.build_id = ${buildId}
+      -- The latest run of each case counts: a CI retry of a case supersedes the earlier one.
+      from (select distinct on (case_id) verdict, status from runs where build_id = ${buildId}
+            order by case_id, created_at desc) r
     ) agg
     where b.id = ${buildId}`);
-}
-
-export interface BuildRunRow {
-  runId: string;
-  caseName: string;
-  status: string;
-  verdict: string | null;
-  errorMessage: string | null;
-  createdAt: Date;
-}
-
-/** Runs of a build, latest run per case (a CI retry of a case supersedes the earlier one). */
-export async function listBuildRuns({
-  workspaceId,
-  buildId,
-}: {
-  workspaceId: string;
-  buildId: string;
-}): Promise<BuildRunRow[]> {
-  return getDb()
-    .selectDistinctOn([cases.name], {
-      runId: runs.id,
-      caseName: cases.name,
-      status: runs.status,
-      verdict: runs.verdict,
-      errorMessage: runs.errorMessage,
-      createdAt: runs.createdAt,
-    })
-    .from(runs)
-    .innerJoin(cases, eq(cases.id, runs.caseId))
-    .where(and(eq(runs.workspaceId, workspaceId), eq(runs.buildId, buildId)))
-    .orderBy(asc(cases.name), sql`${runs.createdAt} desc`);
 }
 
 /** A build that had finished is open again while a newly posted run is analysed. */

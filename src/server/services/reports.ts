@@ -3,7 +3,8 @@ import type { Finding, Variable } from '@/db/schema';
 import type { ProjectScope, RunScope } from '../auth/scope';
 import { env } from '../env';
 import { AppError } from '../errors';
-import { getBuildByKey, listBuildRuns } from '../queries/builds';
+import { listBuildCases } from '../queries/build-view';
+import { getBuildByKey } from '../queries/builds';
 import { decimateKeepingExtrema, downsample2d } from '@/src/lib/decimate';
 import { getRunContext, getUploadForRun, listRunFindings, listRunVariables, type RunContext } from '../queries/runs';
 import { readErrorToAppError, withStoredSnapshots } from './snapshots';
@@ -103,23 +104,14 @@ export async function getRunSeries(
   return { variable: chosen.name, series: chosen.series, variables: variables.map((v) => v.name) };
 }
 
-const verdictRank: Record<string, number> = { pass: 1, warn: 2, fail: 3, error: 4 };
-
 export async function getBuildReport(scope: ProjectScope, key: string) {
   const build = await getBuildByKey({ workspaceId: scope.workspaceId, projectId: scope.projectId, key });
   if (!build) throw new AppError('not_found:build', `No build "${key}" in project "${scope.projectSlug}".`);
-  const runs = await listBuildRuns({ workspaceId: scope.workspaceId, buildId: build.id });
-  const worst = await Promise.all(
-    runs.map(async (r) => {
-      const findings = await listRunFindings({ workspaceId: scope.workspaceId, runId: r.runId });
-      return findings[0] ? findings[0].message : null;
-    }),
+  // Latest run of each case with its worst finding, in one query; in case-name order for CI tables.
+  const runs = (await listBuildCases({ workspaceId: scope.workspaceId, buildId: build.id })).sort((x, y) =>
+    x.caseName.localeCompare(y.caseName),
   );
-  const open = runs.filter((r) => r.status === 'queued' || r.status === 'analysing').length;
-  const verdict = runs.reduce<string | null>(
-    (acc, r) => (r.verdict && (!acc || verdictRank[r.verdict]! > verdictRank[acc]!) ? r.verdict : acc),
-    null,
-  );
+  const open = runs.some((r) => r.status === 'queued' || r.status === 'analysing');
   return {
     build: {
       key: build.key,
@@ -127,18 +119,18 @@ export async function getBuildReport(scope: ProjectScope, key: string) {
       commit: build.commit,
       branch: build.branch,
       ciUrl: build.ciUrl,
-      verdict: open > 0 ? null : verdict,
-      finished: open === 0,
+      verdict: open ? null : build.verdict,
+      finished: !open,
       startedAt: build.startedAt.toISOString(),
       finishedAt: build.finishedAt?.toISOString() ?? null,
     },
-    runs: runs.map((r, i) => ({
+    runs: runs.map((r) => ({
       id: r.runId,
       case: r.caseName,
       status: r.status,
       verdict: r.verdict,
       errorMessage: r.errorMessage,
-      worstFinding: worst[i],
+      worstFinding: r.worstFinding,
       url: `${env().APP_URL}/api/v1/runs/${r.runId}`,
     })),
     note: CHECKS_DO_NOT_PROVE,
